@@ -1,0 +1,103 @@
+"""Command line: argument parsing and exit codes only.
+
+Exit codes: 0 success; 2 a bad spec or bad data (one line per problem, no traceback);
+1 an internal error (with traceback).
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+import warnings
+from pathlib import Path
+from typing import Sequence
+
+from figspec import __version__
+from figspec.errors import FigspecWarning, Problem, UserError
+from figspec.spec.models import ALL_FORMATS
+
+EXIT_OK, EXIT_INTERNAL, EXIT_USER = 0, 1, 2
+
+
+def _spec_files(items: Sequence[str]) -> list[Path]:
+    files: list[Path] = []
+    for item in items:
+        path = Path(item)
+        if path.is_dir():
+            found = sorted(path.glob("*.toml"))
+            if not found:
+                raise UserError(Problem("no spec files (*.toml) in this folder", file=str(path)))
+            files += found
+        else:
+            files.append(path)
+    return files
+
+
+def _formats(text: str | None) -> list[str] | None:
+    if text is None:
+        return None
+    formats = [f.strip().lower() for f in text.split(",") if f.strip()]
+    bad = [f for f in formats if f not in ALL_FORMATS]
+    if bad or not formats:
+        raise UserError(Problem(f"--format takes a comma-separated list of {', '.join(ALL_FORMATS)}",
+                                got=text))
+    return formats
+
+
+def _parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(prog="figspec", description="Render spike raster and rate figures "
+                                     "from reviewable TOML specs.")
+    parser.add_argument("--version", action="version", version=f"figspec {__version__}")
+    sub = parser.add_subparsers(dest="command", required=True)
+    render = sub.add_parser("render", help="render specs (files or folders of *.toml) to figures")
+    render.add_argument("specs", nargs="+", metavar="SPEC_OR_FOLDER")
+    render.add_argument("-o", "--outdir", default="figures", help="output folder (default: figures)")
+    render.add_argument("--format", dest="formats", metavar="LIST",
+                        help="comma-separated formats, overriding the specs' (svg,pdf,png)")
+    check = sub.add_parser("check", help="validate specs and their data; draw nothing")
+    check.add_argument("specs", nargs="+", metavar="SPEC")
+    return parser
+
+
+def run(argv: Sequence[str] | None = None) -> int:
+    """Run the CLI; returns the exit code."""
+    args = _parser().parse_args(argv)
+    from figspec import pipeline
+
+    failed = False
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", FigspecWarning)
+        try:
+            files = _spec_files(args.specs)
+            formats = _formats(getattr(args, "formats", None))
+        except UserError as err:
+            files, failed = [], True
+            for problem in err.problems:
+                print(problem.format(), file=sys.stderr)
+        for path in files:
+            try:
+                if args.command == "render":
+                    written = pipeline.render(path, args.outdir, formats)
+                    print(f"{path}: wrote {len(written)} files to {args.outdir}")
+                else:
+                    resolved = pipeline.check(path)
+                    print(f"{path}: ok ({len(resolved.panels)} panels)")
+            except UserError as err:
+                failed = True
+                for problem in err.problems:
+                    print(problem.format(), file=sys.stderr)
+            finally:
+                for warning in caught:
+                    if issubclass(warning.category, FigspecWarning):
+                        print(f"warning: {warning.message}", file=sys.stderr)
+                caught.clear()
+    return EXIT_USER if failed else EXIT_OK
+
+
+def main(argv: Sequence[str] | None = None) -> None:
+    """Console entry point."""
+    try:
+        code = run(argv)
+    except KeyboardInterrupt:
+        code = 130
+    sys.exit(code)

@@ -1,0 +1,1 @@
+"""Draw layer: (axes, computed table, style) -> artists. Never reads data or recomputes."""

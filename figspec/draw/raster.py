@@ -1,0 +1,45 @@
+"""Raster rows: one line collection per axes, one tick per spike, one line per trial."""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+import numpy as np
+import pandas as pd
+
+from figspec.spec.models import RasterPanel
+from figspec.spec.style import Style
+
+if TYPE_CHECKING:
+    from matplotlib.axes import Axes
+
+
+def draw_raster(axes: dict[float, "Axes"], table: pd.DataFrame, panel: RasterPanel, style: Style) -> None:
+    """Draw each level's rows of the raster table into its axes.
+
+    Trial 0 is the top line. Every trial presented has a line, so trials with no spike stay
+    visible as empty lines and the y extent is the number of trials.
+    """
+    from matplotlib.collections import LineCollection
+
+    half = style.raster.tick_height / 2
+    levels = table["level"].to_numpy()
+    bounds = np.flatnonzero(np.r_[True, levels[1:] != levels[:-1], True])
+    for lo, hi in zip(bounds[:-1], bounds[1:]):
+        ax = axes[float(levels[lo])]
+        rows = table["row"].to_numpy()[lo:hi]
+        times = table["time_ms"].to_numpy()[lo:hi]
+        n_trials = int(rows.max()) + 1
+        spikes = ~np.isnan(times)
+        x, y = times[spikes], rows[spikes].astype(float)
+        segments = np.empty((x.size, 2, 2))
+        segments[:, 0, 0] = segments[:, 1, 0] = x
+        segments[:, 0, 1] = y - half
+        segments[:, 1, 1] = y + half
+        ax.add_collection(LineCollection(segments, colors=style.raster.colour,
+                                         linewidths=style.raster.tick_width_pt, gid="raster"),
+                          autolim=False)
+        ax.set_ylim(n_trials - 0.5, -0.5)
+        ax.set_xlim(*panel.window_ms)
+        ax.set_yticks([])
+        ax.spines["left"].set_visible(False)

@@ -1,0 +1,87 @@
+"""User-facing and internal errors.
+
+A *user* error is a bad spec or bad data: the CLI prints each :class:`Problem` on one line
+(``FILE:LINE: key.path: what is wrong (got X)``) and exits 2 without a traceback. Anything else
+is an internal error (exit 1).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+from typing import Iterable
+
+Loc = tuple[str | int, ...]
+
+
+def format_key_path(loc: Loc) -> str:
+    """Render a key path as ``panels[1].bin_ms``."""
+    out = ""
+    for part in loc:
+        if isinstance(part, int):
+            out += f"[{part}]"
+        else:
+            out += ("." if out else "") + str(part)
+    return out
+
+
+@dataclass(frozen=True)
+class Problem:
+    """One thing wrong with a spec or its data.
+
+    Parameters
+    ----------
+    message : what is wrong or what was expected.
+    loc : key path in the spec, e.g. ``("panels", 1, "bin_ms")``.
+    got : what was found, already formatted for the reader.
+    file : the spec file (filled in by the spec layer when known).
+    line : 1-based line in ``file`` (filled in when the key can be located).
+    """
+
+    message: str
+    loc: Loc = ()
+    got: str | None = None
+    file: str | None = None
+    line: int | None = None
+
+    def format(self) -> str:
+        head = ""
+        if self.file:
+            head = self.file + (f":{self.line}" if self.line else "") + ": "
+        key = format_key_path(self.loc)
+        text = head + (f"{key}: " if key else "") + self.message
+        if self.got is not None:
+            text += f" (got {self.got})"
+        return text
+
+    def located(self, file: str, line: int | None) -> "Problem":
+        return replace(self, file=self.file or file, line=self.line or line)
+
+
+class FigspecError(Exception):
+    """Base class of every error figspec raises on purpose."""
+
+
+class UserError(FigspecError, ValueError):
+    """A bad spec or bad data: reported without a traceback, exit code 2."""
+
+    def __init__(self, problems: Problem | Iterable[Problem]):
+        self.problems: list[Problem] = (
+            [problems] if isinstance(problems, Problem) else list(problems)
+        )
+        super().__init__("\n".join(p.format() for p in self.problems))
+
+
+class SpecError(UserError):
+    """The spec (or a style file) is malformed or inconsistent."""
+
+
+class DataError(UserError):
+    """A data source is missing, unreadable or does not fit the spec."""
+
+
+class InternalError(FigspecError, RuntimeError):
+    """A bug in figspec: reported with a traceback, exit code 1."""
+
+
+class FigspecWarning(UserWarning):
+    """Something the scientist should know about the figure (printed by the CLI)."""

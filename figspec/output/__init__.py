@@ -1,0 +1,1 @@
+"""Output layer: figure files, source data, written atomically and byte-stable."""

@@ -1,0 +1,1 @@
+"""Spec layer: pydantic models of the TOML, loading, key-to-line mapping and errors."""

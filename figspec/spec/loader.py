@@ -1,0 +1,188 @@
+"""Read a spec file: TOML parse, model validation and cross checks, with located errors."""
+
+from __future__ import annotations
+
+import difflib
+import hashlib
+import types
+import typing
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any, TypeVar
+
+import tomli
+from pydantic import BaseModel, ValidationError
+
+from figspec.errors import Loc, Problem, SpecError
+from figspec.spec.keylines import index_key_lines, line_for
+from figspec.spec.models import FigureFile, cross_check
+
+M = TypeVar("M", bound=BaseModel)
+
+
+@dataclass(frozen=True)
+class LoadedSpec:
+    """A validated spec with what is needed to point back into its file."""
+
+    path: Path
+    text: str
+    model: FigureFile
+    key_lines: dict[Loc, int] = field(repr=False)
+
+    @property
+    def folder(self) -> Path:
+        return self.path.parent
+
+    @property
+    def sha256(self) -> str:
+        return hashlib.sha256(self.text.encode()).hexdigest()
+
+    def locate(self, problem: Problem) -> Problem:
+        """Fill in this file and the line of the problem's key path."""
+        return problem.located(str(self.path), line_for(self.key_lines, problem.loc))
+
+    def error(self, problems: list[Problem], kind: type[SpecError] = SpecError) -> SpecError:
+        return kind([self.locate(p) for p in problems])
+
+
+def read_toml(path: Path) -> tuple[str, dict[str, Any]]:
+    """Read and parse a TOML file; a missing file or bad syntax is a :class:`SpecError`."""
+    try:
+        text = path.read_text(encoding="utf-8")
+    except FileNotFoundError:
+        raise SpecError(Problem("file not found", file=str(path))) from None
+    except (OSError, UnicodeDecodeError) as err:
+        raise SpecError(Problem(f"cannot read the file: {err}", file=str(path))) from err
+    try:
+        return text, tomli.loads(text)
+    except tomli.TOMLDecodeError as err:
+        message = str(getattr(err, "msg", err)).split(" (at line")[0]
+        line = getattr(err, "lineno", None)
+        raise SpecError(Problem(f"not valid TOML: {message}", file=str(path), line=line)) from None
+
+
+def validate(model: type[M], data: dict[str, Any], path: Path, text: str) -> M:
+    """Validate ``data`` against ``model``; every failure becomes a located :class:`Problem`."""
+    lines = index_key_lines(text)
+    try:
+        return model.model_validate(data)
+    except ValidationError as err:
+        problems = [problem_from_pydantic(model, e) for e in err.errors(include_url=False)]
+        raise SpecError([p.located(str(path), line_for(lines, p.loc)) for p in problems]) from None
+
+
+def load_spec(path: str | Path) -> LoadedSpec:
+    """Load, validate and cross-check one spec file."""
+    path = Path(path)
+    text, data = read_toml(path)
+    model = validate(FigureFile, data, path, text)
+    spec = LoadedSpec(path=path, text=text, model=model, key_lines=index_key_lines(text))
+    problems = cross_check(model)
+    if problems:
+        raise spec.error(problems)
+    return spec
+
+
+# --- translating pydantic errors -------------------------------------------------------------
+
+def _unwrap(tp: Any) -> Any:
+    """Strip Annotated and Optional wrappers."""
+    while True:
+        origin = typing.get_origin(tp)
+        if origin is typing.Annotated:
+            tp = typing.get_args(tp)[0]
+        elif origin in (typing.Union, types.UnionType):
+            args = [a for a in typing.get_args(tp) if a is not type(None)]
+            if len(args) == 1:
+                tp = args[0]
+            else:
+                return tp
+        else:
+            return tp
+
+
+def _tagged_member(tp: Any, tag: Any) -> type[BaseModel] | None:
+    """The member of a union of models whose ``kind`` literal equals ``tag``."""
+    if typing.get_origin(tp) not in (typing.Union, types.UnionType):
+        return None
+    for member in typing.get_args(tp):
+        if isinstance(member, type) and issubclass(member, BaseModel) and "kind" in member.model_fields:
+            if tag in typing.get_args(member.model_fields["kind"].annotation):
+                return member
+    return None
+
+
+def _union_tags(tp: Any) -> list[str]:
+    tags: list[str] = []
+    for member in typing.get_args(_unwrap(tp)):
+        if isinstance(member, type) and issubclass(member, BaseModel) and "kind" in member.model_fields:
+            tags += list(typing.get_args(member.model_fields["kind"].annotation))
+    return tags
+
+
+def walk_loc(root: type[BaseModel], loc: Loc) -> tuple[Loc, type[BaseModel] | None, Any]:
+    """Follow a pydantic error location through the model types.
+
+    Returns the key path as the user wrote it (union tags removed), the last model passed
+    through (whose keys are the valid siblings of the final key) and the type at the end.
+    """
+    tp: Any = root
+    parent: type[BaseModel] | None = None
+    path: list[str | int] = []
+    for item in loc:
+        tp = _unwrap(tp)
+        member = _tagged_member(tp, item)
+        if member is not None:
+            tp = member
+            continue
+        if isinstance(tp, type) and issubclass(tp, BaseModel):
+            parent = tp
+            path.append(item)
+            info = tp.model_fields.get(str(item))
+            tp = info.annotation if info is not None else None
+        elif typing.get_origin(tp) in (list, tuple):
+            path.append(item)
+            args = typing.get_args(tp)
+            tp = args[0] if args else None
+        elif typing.get_origin(tp) is dict:
+            path.append(item)
+            tp = typing.get_args(tp)[1]
+        else:
+            # a union of plain types reports the member tried (e.g. 'int'): not a user key
+            if isinstance(item, str) and typing.get_origin(tp) in (typing.Union, types.UnionType):
+                continue
+            path.append(item)
+            tp = None
+    return tuple(path), parent, tp
+
+
+def _brief(value: Any) -> str:
+    text = repr(value)
+    return text if len(text) <= 60 else text[:57] + "..."
+
+
+def problem_from_pydantic(root: type[BaseModel], error: dict[str, Any]) -> Problem:
+    """Turn one pydantic error into a :class:`Problem` with the user's key path."""
+    path, parent, tp = walk_loc(root, tuple(error["loc"]))
+    kind = error["type"]
+    if kind == "extra_forbidden":
+        key = str(path[-1]) if path else ""
+        allowed = sorted(parent.model_fields) if parent is not None else []
+        close = difflib.get_close_matches(key, allowed, n=1, cutoff=0.6)
+        hint = f"; did you mean {close[0]!r}?" if close else f"; allowed keys: {', '.join(allowed)}"
+        return Problem(f"unknown key{hint}", path)
+    if kind == "union_tag_invalid":
+        tags = _union_tags(tp)
+        got = error.get("ctx", {}).get("tag", "")
+        close = difflib.get_close_matches(str(got), tags, n=1, cutoff=0.5)
+        hint = f"; did you mean {close[0]!r}?" if close else ""
+        return Problem(f"kind must be one of {', '.join(map(repr, tags))}{hint}", path + ("kind",), repr(got))
+    if kind == "union_tag_not_found":
+        return Problem(f"missing key 'kind' (one of {', '.join(map(repr, _union_tags(tp)))})", path)
+    if kind == "missing":
+        return Problem("missing required key", path)
+    message = error["msg"]
+    for prefix in ("Value error, ", "Assertion failed, "):
+        message = message.removeprefix(prefix)
+    got = None if kind.startswith("value_error") or isinstance(error.get("input"), dict) else _brief(error.get("input"))
+    return Problem(message, path, got)

@@ -1,0 +1,196 @@
+"""Pydantic models of a figure spec (one TOML file).
+
+Every model is frozen and forbids unknown keys. Panel kinds form a discriminated union on
+``kind``, so a mistake inside one panel gives one error at one key path. Checks that relate
+keys in different tables (a panel naming a source that does not exist) live in
+:func:`cross_check`; checks that need the data live in the resolve step of the pipeline.
+"""
+
+from __future__ import annotations
+
+from typing import Annotated, Literal, Union
+
+from pydantic import Field, model_validator
+
+from figspec.errors import Problem
+from figspec.spec.types import Fraction, Frozen, Millimetres, Name, PositiveMs, WindowMs
+
+Format = Literal["svg", "pdf", "png"]
+ALL_FORMATS: tuple[Format, ...] = ("svg", "pdf", "png")
+
+
+class FigureSpec(Frozen):
+    """``[figure]``: the page the panels are laid out on."""
+
+    title: str = ""
+    width_mm: Millimetres = 180.0
+    height_mm: Millimetres = 170.0
+    formats: list[Format] = Field(default_factory=lambda: list(ALL_FORMATS), min_length=1)
+    png_dpi: Annotated[int, Field(ge=72, le=1200)] = 300
+    style: str = "default"
+
+
+class LevelSpec(Frozen):
+    """``[levels]``: what the stimulus level is and how rows are ordered."""
+
+    quantity: str = "Level"
+    unit: str = ""
+    order: Literal["high_at_top", "low_at_top"] = "high_at_top"
+
+    def label(self, value: float) -> str:
+        text = f"{value:g}"
+        return f"{text} {self.unit}" if self.unit else text
+
+
+class StimulusSpec(Frozen):
+    """``[stimulus]``: where the stimulus window is and how it is shaded.
+
+    Either ``per_trial = true`` (onset and offset come from the trial table) or a fixed window
+    ``start_ms``/``stop_ms`` relative to the alignment point.
+    """
+
+    per_trial: bool = False
+    start_ms: float | None = None
+    stop_ms: float | None = None
+    label: str = "Stimulus"
+    opacity: tuple[Fraction, Fraction] = (0.08, 0.4)
+
+    @model_validator(mode="after")
+    def _one_window(self) -> "StimulusSpec":
+        fixed = self.start_ms is not None or self.stop_ms is not None
+        if self.per_trial and fixed:
+            raise ValueError("give either per_trial = true or start_ms/stop_ms, not both")
+        if not self.per_trial:
+            if self.start_ms is None or self.stop_ms is None:
+                raise ValueError("a fixed stimulus window needs both start_ms and stop_ms "
+                                 "(or set per_trial = true to read it from the trial table)")
+            if not self.start_ms < self.stop_ms:
+                raise ValueError(f"start_ms must be < stop_ms, got {self.start_ms:g} and {self.stop_ms:g}")
+        lo, hi = self.opacity
+        if lo > hi:
+            raise ValueError(f"opacity is [lowest level, highest level] and must not fall, got [{lo:g}, {hi:g}]")
+        return self
+
+
+class SpikeColumns(Frozen):
+    """Column names in the spike table (one row per spike)."""
+
+    unit: str | None = "unit"
+    trial: str = "trial"
+    time: str = "time"
+    level: str | None = None
+
+
+class TrialColumns(Frozen):
+    """Column names in the trial table (one row per presented trial)."""
+
+    trial: str = "trial"
+    level: str = "level"
+    onset: str | None = "onset"
+    offset: str | None = "offset"
+    unit: str | None = None
+
+
+class SourceSpec(Frozen):
+    """``[sources.NAME]``: one data set, a spike table and (preferably) a trial table."""
+
+    format: Literal["csv"] = "csv"
+    spikes: str
+    trials: str | None = None
+    time_unit: Literal["s", "ms"] = "s"
+    spike_columns: SpikeColumns = SpikeColumns()
+    trial_columns: TrialColumns = TrialColumns()
+    trials_per_level: Annotated[int, Field(gt=0)] | dict[str, Annotated[int, Field(gt=0)]] | None = None
+    unit_name: str = "unit"
+
+    @model_validator(mode="after")
+    def _trials_described(self) -> "SourceSpec":
+        if self.trials is not None and self.trials_per_level is not None:
+            raise ValueError("give either a trial table (trials) or trials_per_level, not both")
+        if self.trials is None and self.spike_columns.level is None:
+            raise ValueError("without a trial table the spike table must carry the level: "
+                             "set spike_columns.level")
+        return self
+
+
+class PanelBase(Frozen):
+    """Keys every panel kind has."""
+
+    name: Name
+    source: str | None = None
+    unit: str | None = None
+    repeat: Literal["level"] = "level"
+    levels: list[float] | None = None
+    window_ms: WindowMs = (-50.0, 150.0)
+    title: str | None = None
+    x_label: str | None = None
+
+
+class RasterPanel(PanelBase):
+    """``kind = "raster"``: one tick per spike, one line per trial presented."""
+
+    kind: Literal["raster"]
+
+
+class PsthPanel(PanelBase):
+    """``kind = "psth"``: spikes binned in time, summed over the trials presented."""
+
+    kind: Literal["psth"]
+    bin_ms: PositiveMs = 5.0
+    measure: Literal["spikes_per_s", "spikes_per_trial", "count"] = "spikes_per_s"
+    lock_y: bool = True
+    y_max: Annotated[float, Field(gt=0)] | None = None
+    y_label: str | None = None
+
+    @model_validator(mode="after")
+    def _whole_bins(self) -> "PsthPanel":
+        start, stop = self.window_ms
+        n = (stop - start) / self.bin_ms
+        if abs(n - round(n)) > 1e-6 * max(1.0, n):
+            raise ValueError(f"window_ms [{start:g}, {stop:g}] is not a whole number of "
+                             f"{self.bin_ms:g}-ms bins ({n:.3g})")
+        return self
+
+
+Panel = Annotated[Union[RasterPanel, PsthPanel], Field(discriminator="kind")]
+
+
+class FigureFile(Frozen):
+    """The whole spec file."""
+
+    figure: FigureSpec = FigureSpec()
+    levels: LevelSpec = LevelSpec()
+    stimulus: StimulusSpec
+    sources: dict[Name, SourceSpec] = Field(min_length=1)
+    panels: list[Panel] = Field(min_length=1)
+
+
+def source_name(spec: FigureFile, panel: PanelBase) -> str | None:
+    """The source a panel draws from (the only source when it names none)."""
+    if panel.source is not None:
+        return panel.source
+    return next(iter(spec.sources)) if len(spec.sources) == 1 else None
+
+
+def cross_check(spec: FigureFile) -> list[Problem]:
+    """Checks between tables of a valid spec (second tier), each with its key path."""
+    problems: list[Problem] = []
+    seen: dict[str, int] = {}
+    for i, panel in enumerate(spec.panels):
+        if panel.name in seen:
+            problems.append(Problem(f"panel names must be unique; panels[{seen[panel.name]}] has it too",
+                                    ("panels", i, "name"), repr(panel.name)))
+        seen.setdefault(panel.name, i)
+        if panel.source is not None and panel.source not in spec.sources:
+            problems.append(Problem(f"no such source; sources are {sorted(spec.sources)}",
+                                    ("panels", i, "source"), repr(panel.source)))
+        elif source_name(spec, panel) is None:
+            problems.append(Problem(f"several sources exist, so the panel must name one of {sorted(spec.sources)}",
+                                    ("panels", i)))
+        src = spec.sources.get(source_name(spec, panel) or "")
+        if spec.stimulus.per_trial and src is not None and (
+            src.trials is None or src.trial_columns.onset is None or src.trial_columns.offset is None
+        ):
+            problems.append(Problem("stimulus.per_trial needs a trial table with onset and offset columns "
+                                    f"in source {source_name(spec, panel)!r}", ("stimulus", "per_trial")))
+    return list(dict.fromkeys(problems))

@@ -1,0 +1,116 @@
+"""House style: a TOML file in styles/ resolved to figspec's own drawing tokens.
+
+Every key is required in a style file, so a style says everything it means; the resolved
+:class:`Style` is what draw functions receive. ``rc()`` gives the matplotlib settings that go
+with it, applied by the draw layer inside a context so that nothing leaks between figures.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Annotated, Literal
+
+from pydantic import Field
+
+from figspec.errors import Problem, SpecError
+from figspec.spec.types import Colour, Fraction, Frozen, Points
+
+PACKAGE_STYLES = Path(__file__).resolve().parents[1] / "_styles"   # in an installed wheel
+SOURCE_STYLES = Path(__file__).resolve().parents[2] / "styles"     # in a source checkout
+
+
+class FontStyle(Frozen):
+    family: str
+    body_pt: Points
+    tick_pt: Points
+    title_pt: Points
+    figure_title_pt: Points
+
+
+class AxesStyle(Frozen):
+    line_pt: Points
+    tick_length_pt: Annotated[float, Field(ge=0, le=20)]
+    tick_direction: Literal["in", "out", "inout"]
+    spines: list[Literal["left", "bottom", "right", "top"]]
+
+
+class RasterStyle(Frozen):
+    colour: Colour
+    tick_height: Annotated[float, Field(gt=0, le=1)]
+    tick_width_pt: Points
+
+
+class RateStyle(Frozen):
+    colour: Colour
+    edge_pt: Annotated[float, Field(ge=0, le=10)]
+
+
+class StimulusStyle(Frozen):
+    colour: Colour
+    range_hatch_opacity: Fraction
+
+
+class Style(Frozen):
+    """A resolved house style."""
+
+    font: FontStyle
+    axes: AxesStyle
+    raster: RasterStyle
+    rate: RateStyle
+    stimulus: StimulusStyle
+
+    def rc(self) -> dict[str, object]:
+        """matplotlib settings for this style (applied only inside a context)."""
+        f, a = self.font, self.axes
+        return {
+            "font.family": "sans-serif",
+            "font.sans-serif": [f.family, "DejaVu Sans"],
+            "font.size": f.body_pt,
+            "axes.titlesize": f.title_pt,
+            "axes.labelsize": f.body_pt,
+            "figure.titlesize": f.figure_title_pt,
+            "xtick.labelsize": f.tick_pt,
+            "ytick.labelsize": f.tick_pt,
+            "axes.linewidth": a.line_pt,
+            "xtick.major.width": a.line_pt,
+            "ytick.major.width": a.line_pt,
+            "xtick.major.size": a.tick_length_pt,
+            "ytick.major.size": a.tick_length_pt,
+            "xtick.direction": a.tick_direction,
+            "ytick.direction": a.tick_direction,
+            "axes.spines.left": "left" in a.spines,
+            "axes.spines.bottom": "bottom" in a.spines,
+            "axes.spines.right": "right" in a.spines,
+            "axes.spines.top": "top" in a.spines,
+            "axes.titlepad": 3.0,
+            "axes.labelpad": 2.0,
+            "xtick.major.pad": 1.5,
+            "ytick.major.pad": 1.5,
+            "pdf.fonttype": 42,
+            "ps.fonttype": 42,
+            "svg.fonttype": "none",
+            "svg.hashsalt": "figspec",
+            "path.simplify": False,
+        }
+
+
+def style_path(name: str, spec_folder: Path | None = None) -> Path:
+    """Where the style ``name`` lives: a path to a .toml file, or a name looked up in
+    ``styles/`` beside the spec, then figspec's own styles."""
+    if name.endswith(".toml"):
+        return (spec_folder or Path.cwd()) / name
+    for folder in ([spec_folder / "styles"] if spec_folder else []) + [SOURCE_STYLES, PACKAGE_STYLES]:
+        candidate = folder / f"{name}.toml"
+        if candidate.is_file():
+            return candidate
+    raise SpecError(Problem(f"no style named {name!r} (looked in styles/ beside the spec and in "
+                            "figspec's own styles)", ("figure", "style"), repr(name)))
+
+
+def load_style(name: str, spec_folder: Path | None = None) -> Style:
+    """Read and validate a style file (see :func:`style_path` for the lookup)."""
+    from figspec.spec.loader import read_toml, validate
+
+    path = style_path(name, spec_folder)
+    text, data = read_toml(path)
+    return validate(Style, data, path, text)
