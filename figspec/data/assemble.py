@@ -150,7 +150,7 @@ def assemble(spikes: pd.DataFrame, trials: pd.DataFrame | None, *, time_unit: st
     else:
         pair_unit = np.repeat(np.arange(len(units), dtype=np.int64), len(trials))
         pair_trial = np.tile(np.arange(len(trials), dtype=np.int64), len(units))
-    pairs = pd.DataFrame({"unit": np.asarray(units, dtype=object)[pair_unit] if units else [],
+    pairs = pd.DataFrame({"unit": np.asarray(units, dtype=object)[pair_unit].astype(str),
                           "trial": trials["trial"].to_numpy()[pair_trial],
                           "pair": np.arange(pair_unit.size)})
     spikes["unit"] = spikes["unit"].astype(str)

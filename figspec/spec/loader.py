@@ -168,7 +168,7 @@ def problem_from_pydantic(root: type[BaseModel], error: dict[str, Any]) -> Probl
     if kind == "extra_forbidden":
         key = str(path[-1]) if path else ""
         allowed = sorted(parent.model_fields) if parent is not None else []
-        close = difflib.get_close_matches(key, allowed, n=1, cutoff=0.6)
+        close = difflib.get_close_matches(key, allowed, n=1, cutoff=0.5)
         hint = f"; did you mean {close[0]!r}?" if close else f"; allowed keys: {', '.join(allowed)}"
         return Problem(f"unknown key{hint}", path)
     if kind == "union_tag_invalid":

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from typing import Annotated, Literal, Union
 
-from pydantic import Field, model_validator
+from pydantic import Field, ValidationInfo, field_validator, model_validator
 
 from figspec.errors import Problem
 from figspec.spec.types import Fraction, Frozen, Millimetres, Name, PositiveMs, WindowMs
@@ -142,14 +142,16 @@ class PsthPanel(PanelBase):
     y_max: Annotated[float, Field(gt=0)] | None = None
     y_label: str | None = None
 
-    @model_validator(mode="after")
-    def _whole_bins(self) -> "PsthPanel":
-        start, stop = self.window_ms
-        n = (stop - start) / self.bin_ms
-        if abs(n - round(n)) > 1e-6 * max(1.0, n):
-            raise ValueError(f"window_ms [{start:g}, {stop:g}] is not a whole number of "
-                             f"{self.bin_ms:g}-ms bins ({n:.3g})")
-        return self
+    @field_validator("bin_ms")
+    @classmethod
+    def _whole_bins(cls, bin_ms: float, info: ValidationInfo) -> float:
+        window = info.data.get("window_ms")
+        if window is not None:
+            n = (window[1] - window[0]) / bin_ms
+            if abs(n - round(n)) > 1e-6 * max(1.0, n):
+                raise ValueError(f"window_ms [{window[0]:g}, {window[1]:g}] must hold a whole number "
+                                 f"of bins ({n:.3g} bins of {bin_ms:g} ms)")
+        return bin_ms
 
 
 Panel = Annotated[Union[RasterPanel, PsthPanel], Field(discriminator="kind")]

@@ -1,0 +1,86 @@
+import numpy as np
+import pandas as pd
+import pytest
+
+from figspec.data.assemble import TrialCounts, assemble
+from figspec.errors import DataError, FigspecWarning
+
+from helpers import build_recording
+
+TRIALS = [(1, 40, 1.0, 1.05), (2, 0, 2.0, 2.05), (3, 40, 3.0, 3.05), (4, 0, 4.0, 4.05)]
+
+
+def test_trials_without_spikes_are_kept():
+    rec = build_recording([("u1", 1, 1.01), ("u1", 3, 3.02)], TRIALS)
+    assert rec.n_pairs == 4                           # trials 2 and 4 have no spike
+    assert np.diff(rec.offsets).tolist() == [1, 0, 1, 0]
+
+
+def test_levels_sort_numerically_not_as_text():
+    trials = [(1, "9", 0, 1), (2, "10", 2, 3), (3, "100", 4, 5), (4, "-5", 6, 7)]
+    rec = build_recording([("u1", 1, 0.1)], trials)
+    assert rec.levels.tolist() == [-5.0, 9.0, 10.0, 100.0]
+
+
+def test_times_are_aligned_to_onset_and_ms_converted_to_s():
+    rec_s = build_recording([("u1", 1, 1.012)], TRIALS)
+    ms_trials = [(t, lv, on * 1e3, off * 1e3) for t, lv, on, off in TRIALS]
+    rec_ms = build_recording([("u1", 1, 1012.0)], ms_trials, time_unit="ms")
+    assert rec_s.times_s == pytest.approx([0.012])
+    assert rec_ms.times_s == pytest.approx([0.012])
+    assert rec_ms.trials["stim_stop_s"].to_numpy() == pytest.approx(0.05)
+
+
+def test_units_are_kept_apart():
+    rec = build_recording([("u2", 1, 1.01), ("u10", 1, 1.03), ("u2", 3, 3.02)], TRIALS)
+    assert rec.units == ("u2", "u10")                 # natural order
+    per_unit = np.bincount(rec.pair_unit[rec.spike_pair()], minlength=2)
+    assert per_unit.tolist() == [2, 1]
+    assert rec.n_pairs == 8                           # every unit saw every trial
+
+
+def test_spikes_are_sorted_within_each_trial():
+    rec = build_recording([("u1", 1, 1.03), ("u1", 1, 1.01), ("u1", 1, 1.02)], TRIALS)
+    assert rec.times_s == pytest.approx([0.01, 0.02, 0.03])
+
+
+def test_spikes_of_unknown_trials_warn_and_are_left_out():
+    with pytest.warns(FigspecWarning, match="1 spikes belong to 1 trials"):
+        rec = build_recording([("u1", 1, 1.01), ("u1", 99, 9.0)], TRIALS)
+    assert rec.n_spikes == 1
+
+
+def test_non_numeric_level_is_a_data_error():
+    with pytest.raises(DataError, match="levels must be numbers"):
+        build_recording([("u1", 1, 0.1)], [(1, "loud", 0, 1)])
+
+
+def test_duplicate_trial_ids_are_a_data_error():
+    with pytest.raises(DataError, match="unique"):
+        build_recording([("u1", 1, 0.1)], [(1, 0, 0, 1), (1, 10, 2, 3)])
+
+
+def _no_trial_table(per_level):
+    spikes = pd.DataFrame({"unit": "u1", "trial": [1, 2, 3], "time": [0.01, 0.02, 0.03],
+                           "level": [0, 0, 20]})
+    locs = {k: ("sources", "t", k) for k in ("unit", "trial", "time", "level", "onset", "offset")}
+    return assemble(spikes, None, time_unit="s", where="test", locs=locs,
+                    counts=TrialCounts(per_level, ("sources", "t", "trials_per_level")))
+
+
+def test_declared_trials_per_level_add_the_empty_trials():
+    rec = _no_trial_table(5)
+    assert rec.trials.groupby("level").size().to_dict() == {0.0: 5, 20.0: 5}
+    rec = _no_trial_table({"0": 2, "20": 4, "40": 3})
+    assert rec.trials.groupby("level").size().to_dict() == {0.0: 2, 20.0: 4, 40.0: 3}
+
+
+def test_more_trials_with_spikes_than_declared_is_an_error():
+    with pytest.raises(DataError, match="more than the 1 declared"):
+        _no_trial_table(1)
+
+
+def test_inferring_trials_from_spikes_warns_loudly():
+    with pytest.warns(FigspecWarning, match="trials without any spike are missing"):
+        rec = _no_trial_table(None)
+    assert len(rec.trials) == 3

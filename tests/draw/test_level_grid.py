@@ -1,0 +1,111 @@
+"""Artist-level checks of the level grid drawn from the demo data."""
+
+import numpy as np
+import pytest
+from matplotlib.collections import LineCollection
+
+from figspec import pipeline
+from figspec.draw.context import styled
+
+from helpers import DEMO_SPEC
+
+
+@pytest.fixture(scope="module")
+def drawn():
+    resolved = pipeline.resolve(pipeline.load(DEMO_SPEC))
+    tables = pipeline.compute(resolved)
+    with styled(resolved.style):
+        fig = pipeline.draw(resolved, tables)
+        fig.canvas.draw()
+    return resolved, tables, fig
+
+
+def grid(fig, n_cols=2):
+    axes = fig.axes
+    return [axes[i:i + n_cols] for i in range(0, len(axes), n_cols)]
+
+
+def test_one_row_per_level_high_at_top(drawn):
+    resolved, tables, fig = drawn
+    rows = grid(fig)
+    assert len(rows) == 9
+    labels = [r[0].get_ylabel().split("\n")[0] for r in rows]
+    assert labels[0] == "80 dB SPL" and labels[-1] == "0 dB SPL"
+    assert all(r[0].get_ylabel().endswith("n = 30") for r in rows)
+
+
+def test_raster_is_one_collection_per_row_with_one_segment_per_spike(drawn):
+    resolved, tables, fig = drawn
+    raster = tables.panels["spikes"]
+    for row in grid(fig):
+        level = float(row[0].get_ylabel().split(" ")[0])
+        collections = [c for c in row[0].collections if isinstance(c, LineCollection)]
+        assert len(collections) == 1
+        segments = collections[0].get_segments()
+        n_spikes = raster[(raster["level"] == level)]["time_ms"].notna().sum()
+        assert len(segments) == n_spikes
+        xs = np.sort([s[0, 0] for s in segments])
+        expected = np.sort(raster[(raster["level"] == level)]["time_ms"].dropna().to_numpy())
+        np.testing.assert_array_equal(xs, expected)
+
+
+def test_raster_rows_span_all_trials_presented(drawn):
+    _, _, fig = drawn
+    for row in grid(fig):
+        assert row[0].get_ylim() == (29.5, -0.5)
+
+
+def test_every_rate_row_has_the_same_y_limits(drawn):
+    _, tables, fig = drawn
+    limits = {row[1].get_ylim() for row in grid(fig)}
+    assert len(limits) == 1
+    assert limits.pop()[1] >= tables.panels["rate"]["rate"].max()
+
+
+def test_unlocked_rows_scale_apart(tmp_path):
+    text = DEMO_SPEC.read_text().replace("bin_ms = 5", "bin_ms = 5\nlock_y = false")
+    spec = tmp_path / "unlocked.toml"
+    spec.write_text(text.replace("data/", str(DEMO_SPEC.parent / "data") + "/"))
+    resolved = pipeline.resolve(pipeline.load(spec))
+    with styled(resolved.style):
+        fig = pipeline.draw(resolved, pipeline.compute(resolved))
+    assert len({row[1].get_ylim() for row in grid(fig)}) > 1
+
+
+def test_every_row_has_the_declared_x_limits(drawn):
+    _, _, fig = drawn
+    assert {ax.get_xlim() for ax in fig.axes} == {(-50.0, 150.0)}
+
+
+def test_shading_opacity_increases_with_level(drawn):
+    _, _, fig = drawn
+    for col in (0, 1):
+        alphas = []
+        for row in grid(fig)[::-1]:  # bottom (0 dB) to top (80 dB)
+            spans = [p for p in row[col].patches if p.get_gid() == "stimulus"]
+            assert len(spans) == 1
+            alphas.append(spans[0].get_alpha())
+        assert np.all(np.diff(alphas) > 0)
+
+
+def test_stimulus_spans_the_burst(drawn):
+    _, _, fig = drawn
+    span = [p for p in fig.axes[0].patches if p.get_gid() == "stimulus"][0]
+    box = span.get_bbox()
+    assert (box.x0, box.x1) == pytest.approx((0.0, 50.0))
+
+
+def test_titles_once_per_column_and_x_label_only_at_the_bottom(drawn):
+    _, _, fig = drawn
+    rows = grid(fig)
+    assert [ax.get_title() for ax in rows[0]] == ["Spikes", "Firing rate"]
+    assert all(ax.get_title() == "" for row in rows[1:] for ax in row)
+    assert all(ax.get_xlabel() == "Time from stimulus onset (ms)" for ax in rows[-1])
+    assert all(ax.get_xlabel() == "" for row in rows[:-1] for ax in row)
+    assert fig.get_suptitle().startswith("Unit u1")
+
+
+def test_figure_has_the_declared_physical_size(drawn):
+    resolved, _, fig = drawn
+    w, h = fig.get_size_inches() * 25.4
+    assert (w, h) == pytest.approx((resolved.spec.model.figure.width_mm, resolved.spec.model.figure.height_mm))

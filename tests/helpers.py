@@ -1,0 +1,66 @@
+"""Helpers shared by the tests: paths, small recordings, spec files."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pandas as pd
+
+ROOT = Path(__file__).resolve().parents[1]
+SPECS = ROOT / "specs"
+DEMO_SPEC = SPECS / "level_grid.toml"
+
+
+def build_recording(spikes: list[tuple], trials: list[tuple], time_unit: str = "s"):
+    """A recording from ``spikes`` = [(unit, trial, time)] and ``trials`` = [(trial, level, onset,
+    offset)], through the same assembly every source uses."""
+    from figspec.data.assemble import TrialCounts, assemble
+
+    spike_frame = pd.DataFrame(spikes, columns=["unit", "trial", "time"]).astype({"unit": str})
+    trial_frame = pd.DataFrame(trials, columns=["trial", "level", "onset", "offset"])
+    locs = {k: ("sources", "t", k) for k in ("unit", "trial", "time", "level", "onset", "offset")}
+    return assemble(spike_frame, trial_frame, time_unit=time_unit, where="test", locs=locs,
+                    counts=TrialCounts(None, ("sources", "t")))
+
+
+def panel(kind: str, **keys):
+    """A validated panel model of ``kind`` with test defaults."""
+    from figspec.spec.models import PsthPanel, RasterPanel
+
+    model = {"raster": RasterPanel, "psth": PsthPanel}[kind]
+    return model.model_validate({"name": "p", "kind": kind, "unit": "u1", **keys})
+
+
+def write_spec(folder: Path, text: str, name: str = "spec.toml") -> Path:
+    """Write a spec file; ``@DATA@`` is replaced by the demo data folder."""
+    path = folder / name
+    path.write_text(text.replace("@DATA@", str(SPECS / "data")), encoding="utf-8")
+    return path
+
+
+MINIMAL_SPEC = """\
+[figure]
+title = "t"
+width_mm = 100
+height_mm = 120
+
+[stimulus]
+per_trial = true
+
+[sources.demo]
+spikes = "@DATA@/spikes.csv"
+trials = "@DATA@/trials.csv"
+spike_columns = { unit = "unit", trial = "trial", time = "time_s" }
+trial_columns = { trial = "trial", level = "level_db", onset = "onset_s", offset = "offset_s" }
+
+[[panels]]
+name = "spikes"
+kind = "raster"
+unit = "u2"
+
+[[panels]]
+name = "rate"
+kind = "psth"
+unit = "u2"
+bin_ms = 10
+"""

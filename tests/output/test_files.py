@@ -1,0 +1,65 @@
+import re
+
+import pytest
+
+from figspec import pipeline
+from figspec.output.files import write_atomic
+
+from helpers import DEMO_SPEC
+
+
+@pytest.fixture(scope="module")
+def rendered(tmp_path_factory):
+    out = tmp_path_factory.mktemp("out")
+    return out, pipeline.render(DEMO_SPEC, out)
+
+
+def test_all_formats_and_source_data_are_written(rendered):
+    out, written = rendered
+    names = {p.relative_to(out).as_posix() for p in written}
+    assert names == {"level_grid.svg", "level_grid.pdf", "level_grid.png", "level_grid_data/spikes.csv",
+                     "level_grid_data/rate.csv", "level_grid_data/stimulus.csv"}
+
+
+def test_pdf_text_is_embedded_truetype(rendered):
+    # PDF 1.7 (ISO 32000-1) 9.6.3, 9.7.4 and 9.9: a TrueType font is /Subtype /TrueType, or
+    # /CIDFontType2 under a Type0 font (what matplotlib 3.10+ writes; pdffonts says "CID
+    # TrueType"); its embedded program is a /FontFile2 stream. Type 3 fonts are not editable text.
+    out, _ = rendered
+    pdf = (out / "level_grid.pdf").read_bytes()
+    assert re.search(rb"/Subtype\s*/(TrueType|CIDFontType2)", pdf)
+    assert b"/FontFile2" in pdf
+    assert not re.search(rb"/Subtype\s*/Type3", pdf)
+
+
+def test_pdf_media_box_is_the_declared_size(rendered):
+    # PDF user space unit is 1/72 inch (ISO 32000-1, 8.3.2.3)
+    out, _ = rendered
+    pdf = (out / "level_grid.pdf").read_bytes()
+    box = [float(v) for v in re.search(rb"/MediaBox\s*\[\s*([\d.\s]+)\]", pdf).group(1).split()]
+    assert (box[2] - box[0]) / 72 * 25.4 == pytest.approx(120.0, abs=0.1)
+    assert (box[3] - box[1]) / 72 * 25.4 == pytest.approx(150.0, abs=0.1)
+
+
+def test_svg_text_is_real_text_and_has_the_declared_size(rendered):
+    out, _ = rendered
+    svg = (out / "level_grid.svg").read_text()
+    assert "<text" in svg and "80 dB SPL" in svg
+    assert re.search(r'width="340\.15\d*pt"', svg)  # 120 mm = 340.157 pt
+
+
+def test_same_spec_renders_to_the_same_bytes(rendered, tmp_path):
+    out, written = rendered
+    again = pipeline.render(DEMO_SPEC, tmp_path)
+    for first, second in zip(sorted(written), sorted(again)):
+        assert first.read_bytes() == second.read_bytes(), first.name
+
+
+def test_atomic_write_leaves_the_old_file_when_writing_fails(tmp_path):
+    target = tmp_path / "f.txt"
+    target.write_bytes(b"old")
+
+    with pytest.raises(TypeError):
+        write_atomic(target, "not bytes")  # fails inside the write, after the temporary file exists
+    assert target.read_bytes() == b"old"
+    assert list(tmp_path.iterdir()) == [target]

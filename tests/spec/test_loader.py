@@ -1,0 +1,60 @@
+import pytest
+
+from figspec.errors import SpecError
+from figspec.spec.loader import load_spec
+
+from helpers import MINIMAL_SPEC, write_spec
+
+
+def problems_of(path):
+    with pytest.raises(SpecError) as info:
+        load_spec(path)
+    return info.value.problems
+
+
+def test_minimal_spec_loads(minimal_spec):
+    spec = load_spec(minimal_spec)
+    assert [p.name for p in spec.model.panels] == ["spikes", "rate"]
+
+
+def test_misspelled_key_names_file_line_path_and_suggestion(tmp_path):
+    path = write_spec(tmp_path, MINIMAL_SPEC.replace("bin_ms = 10", "bin_width = 10"))
+    [problem] = problems_of(path)
+    line = MINIMAL_SPEC.splitlines().index("bin_ms = 10") + 1
+    assert problem.format() == f"{path}:{line}: panels[1].bin_width: unknown key; did you mean 'bin_ms'?"
+
+
+def test_unknown_kind_suggests_the_nearest(tmp_path):
+    path = write_spec(tmp_path, MINIMAL_SPEC.replace('kind = "psth"', 'kind = "psht"'))
+    [problem] = problems_of(path)
+    assert problem.loc == ("panels", 1, "kind")
+    assert "did you mean 'psth'" in problem.message and problem.got == "'psht'"
+
+
+def test_bad_value_reports_what_was_found(tmp_path):
+    path = write_spec(tmp_path, MINIMAL_SPEC.replace("bin_ms = 10", "bin_ms = -5"))
+    [problem] = problems_of(path)
+    line = MINIMAL_SPEC.splitlines().index("bin_ms = 10") + 1
+    assert problem.format() == f"{path}:{line}: panels[1].bin_ms: Input should be greater than 0 (got -5)"
+
+
+def test_several_problems_are_all_reported(tmp_path):
+    text = MINIMAL_SPEC.replace("bin_ms = 10", "bin_ms = 0").replace("width_mm = 100", "widht_mm = 100")
+    problems = problems_of(write_spec(tmp_path, text))
+    assert {p.loc for p in problems} == {("panels", 1, "bin_ms"), ("figure", "widht_mm")}
+
+
+def test_toml_syntax_error_has_a_line(tmp_path):
+    [problem] = problems_of(write_spec(tmp_path, '[figure]\ntitle = "open\n'))
+    assert problem.line == 2 and "not valid TOML" in problem.message
+
+
+def test_missing_required_table(tmp_path):
+    text = MINIMAL_SPEC.replace("[stimulus]\nper_trial = true\n", "")
+    [problem] = problems_of(write_spec(tmp_path, text))
+    assert problem.loc == ("stimulus",) and problem.message == "missing required key"
+
+
+def test_missing_file(tmp_path):
+    [problem] = problems_of(tmp_path / "absent.toml")
+    assert problem.message == "file not found"
