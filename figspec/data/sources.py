@@ -24,7 +24,7 @@ def _column_plan(src: SourceSpec, loc: Loc) -> tuple[dict, dict | None]:
     sc, tc = src.spike_columns, src.trial_columns
     spikes = {"trial": (sc.trial, loc + ("spike_columns", "trial")),
               "time": (sc.time, loc + ("spike_columns", "time"))}
-    if sc.unit is not None:
+    if src.unit_name is None:
         spikes["unit"] = (sc.unit, loc + ("spike_columns", "unit"))
     if src.trials is None:
         spikes["level"] = (sc.level, loc + ("spike_columns", "level"))
@@ -62,7 +62,7 @@ def load_source(src: SourceSpec, folder: Path, loc: Loc) -> Recording:
     loc : key path of the source in the spec, e.g. ``("sources", "midbrain")``.
     """
     spikes, trials = READERS[src.format](src, folder, loc)
-    if "unit" not in spikes:
+    if src.unit_name is not None:
         spikes["unit"] = src.unit_name
     spike_plan, trial_plan = _column_plan(src, loc)
     locs = {k: v[1] for k, v in spike_plan.items()}

@@ -75,24 +75,31 @@ class StimulusSpec(Frozen):
 class SpikeColumns(Frozen):
     """Column names in the spike table (one row per spike)."""
 
-    unit: str | None = "unit"
+    unit: str = "unit"
     trial: str = "trial"
     time: str = "time"
     level: str | None = None
 
 
 class TrialColumns(Frozen):
-    """Column names in the trial table (one row per presented trial)."""
+    """Column names in the trial table (one row per presented trial).
+
+    ``onset`` names the column spikes are aligned to; without it spike times are taken as
+    already relative to stimulus onset. ``unit`` is for trials that belong to one unit each.
+    """
 
     trial: str = "trial"
     level: str = "level"
-    onset: str | None = "onset"
-    offset: str | None = "offset"
+    onset: str | None = None
+    offset: str | None = None
     unit: str | None = None
 
 
 class SourceSpec(Frozen):
-    """``[sources.NAME]``: one data set, a spike table and (preferably) a trial table."""
+    """``[sources.NAME]``: one data set, a spike table and (preferably) a trial table.
+
+    ``unit_name`` is for a spike table of one unit without a unit column.
+    """
 
     format: Literal["csv"] = "csv"
     spikes: str
@@ -101,12 +108,14 @@ class SourceSpec(Frozen):
     spike_columns: SpikeColumns = SpikeColumns()
     trial_columns: TrialColumns = TrialColumns()
     trials_per_level: Annotated[int, Field(gt=0)] | dict[str, Annotated[int, Field(gt=0)]] | None = None
-    unit_name: str = "unit"
+    unit_name: str | None = None
 
     @model_validator(mode="after")
     def _trials_described(self) -> "SourceSpec":
         if self.trials is not None and self.trials_per_level is not None:
             raise ValueError("give either a trial table (trials) or trials_per_level, not both")
+        if self.trial_columns.offset is not None and self.trial_columns.onset is None:
+            raise ValueError("trial_columns.offset needs trial_columns.onset (offsets are taken relative to it)")
         if self.trials is None and self.spike_columns.level is None:
             raise ValueError("without a trial table the spike table must carry the level: "
                              "set spike_columns.level")

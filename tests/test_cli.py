@@ -1,0 +1,72 @@
+"""The CLI in a subprocess: exit codes, one line per problem, no traceback."""
+
+import subprocess
+import sys
+
+from helpers import MINIMAL_SPEC, SPECS, write_spec
+
+
+def figspec(*args, cwd=None):
+    return subprocess.run([sys.executable, "-m", "figspec", *map(str, args)], capture_output=True,
+                          text=True, cwd=cwd)
+
+
+def test_check_good_spec_exits_0(minimal_spec):
+    result = figspec("check", minimal_spec)
+    assert result.returncode == 0, result.stderr
+    assert "ok (2 panels)" in result.stdout
+
+
+def test_misspelled_key_exits_2_with_file_line_path_and_suggestion(tmp_path):
+    path = write_spec(tmp_path, MINIMAL_SPEC.replace("bin_ms = 10", "bin_width = 10"))
+    result = figspec("check", path)
+    line = MINIMAL_SPEC.splitlines().index("bin_ms = 10") + 1
+    assert result.returncode == 2
+    assert result.stderr.strip() == f"{path}:{line}: panels[1].bin_width: unknown key; did you mean 'bin_ms'?"
+    assert "Traceback" not in result.stderr
+
+
+def test_missing_data_file_exits_2(tmp_path):
+    path = write_spec(tmp_path, MINIMAL_SPEC.replace("spikes.csv", "absent.csv"))
+    result = figspec("check", path)
+    assert result.returncode == 2 and "Traceback" not in result.stderr
+    assert f"{path}:10: sources.demo.spikes: data file not found:" in result.stderr
+
+
+def test_missing_mapped_column_exits_2(tmp_path):
+    path = write_spec(tmp_path, MINIMAL_SPEC.replace('time = "time_s"', 'time = "t"'))
+    result = figspec("check", path)
+    assert result.returncode == 2 and "Traceback" not in result.stderr
+    assert f"{path}:12: sources.demo.spike_columns.time: column 't' not found" in result.stderr
+    assert "(got columns: unit, trial, time_s)" in result.stderr
+
+
+def test_render_folder_writes_every_format(tmp_path):
+    result = figspec("render", SPECS, "-o", tmp_path / "out", "--format", "png,svg")
+    assert result.returncode == 0, result.stderr
+    assert (tmp_path / "out" / "level_grid.png").is_file()
+    assert (tmp_path / "out" / "level_grid.svg").is_file()
+    assert not (tmp_path / "out" / "level_grid.pdf").exists()
+
+
+def test_bad_format_exits_2(minimal_spec):
+    result = figspec("render", minimal_spec, "--format", "jpg")
+    assert result.returncode == 2 and "--format" in result.stderr
+
+
+def test_inferred_trials_warn_on_stderr(tmp_path):
+    text = MINIMAL_SPEC.replace('trials = "@DATA@/trials.csv"\n', "").replace(
+        'spike_columns = { unit = "unit", trial = "trial", time = "time_s" }',
+        'spike_columns = { unit = "unit", trial = "trial", time = "time_s", level = "level_db" }')
+    text = text.replace("trial_columns = {", "# trial_columns = {").replace("per_trial = true",
+                                                                            "start_ms = 0\nstop_ms = 50")
+    data = tmp_path / "spikes.csv"
+    import pandas as pd
+
+    spikes = pd.read_csv(SPECS / "data" / "spikes.csv").merge(pd.read_csv(SPECS / "data" / "trials.csv"))
+    spikes["time_s"] -= spikes["onset_s"]
+    spikes[["unit", "trial", "time_s", "level_db"]].to_csv(data, index=False)
+    path = write_spec(tmp_path, text.replace("@DATA@/spikes.csv", str(data)))
+    result = figspec("check", path)
+    assert result.returncode == 0, result.stderr
+    assert "warning:" in result.stderr and "trials without any spike are missing" in result.stderr
