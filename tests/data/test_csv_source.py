@@ -32,3 +32,13 @@ def test_missing_file_names_the_key(tmp_path):
     with pytest.raises(DataError) as info:
         load_source(SourceSpec.model_validate(DEMO), tmp_path, ("sources", "demo"))
     assert info.value.problems[0].loc == ("sources", "demo", "spikes")
+
+
+def test_one_unit_file_without_unit_column(tmp_path):
+    (tmp_path / "s.csv").write_text("trial,t_ms\n1,12.5\n2,30\n")
+    (tmp_path / "t.csv").write_text("trial,level\n1,10\n2,20\n3,20\n")
+    spec = SourceSpec.model_validate({"spikes": "s.csv", "trials": "t.csv", "time_unit": "ms",
+                                      "unit_name": "cell7", "spike_columns": {"time": "t_ms"}})
+    rec = load_source(spec, tmp_path, ("sources", "one"))
+    assert rec.units == ("cell7",)
+    assert rec.n_pairs == 3 and rec.times_s.tolist() == [0.0125, 0.03]

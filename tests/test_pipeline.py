@@ -1,0 +1,44 @@
+"""The pipeline's named steps, stopped before drawing, and options that change the grid."""
+
+import pytest
+
+from figspec import pipeline
+from figspec.draw.context import styled
+from figspec.errors import DataError
+
+from helpers import MINIMAL_SPEC, write_spec
+
+
+def test_steps_can_stop_before_drawing(minimal_spec):
+    resolved = pipeline.resolve(pipeline.load(minimal_spec))
+    tables = pipeline.compute(resolved)
+    assert set(tables.for_export()) == {"spikes", "rate", "stimulus"}
+    assert tables.panels["rate"]["n_trials"].unique().tolist() == [30]
+
+
+def test_level_subset_fixed_window_and_low_at_top(tmp_path):
+    text = (MINIMAL_SPEC.replace("per_trial = true", "start_ms = 0\nstop_ms = 50")
+            .replace("[stimulus]", '[levels]\norder = "low_at_top"\nunit = "dB"\n\n[stimulus]')
+            .replace('unit = "u2"\nbin_ms = 10', 'unit = "u2"\nbin_ms = 10\nlevels = [20, 60]'))
+    resolved = pipeline.resolve(pipeline.load(write_spec(tmp_path, text)))
+    tables = pipeline.compute(resolved)
+    with styled(resolved.style):
+        fig = pipeline.draw(resolved, tables)
+    labels = [ax.get_ylabel().split("\n")[0] for ax in fig.axes[::2]]
+    assert labels[0] == "0 dB" and labels[-1] == "80 dB"
+    rate_axes = fig.axes[1::2]
+    assert [ax.axison for ax in rate_axes] == [lv in ("20 dB", "60 dB") for lv in labels]
+
+
+def test_unknown_level_is_a_data_error_at_its_key(tmp_path):
+    text = MINIMAL_SPEC.replace('unit = "u2"\nbin_ms = 10', 'unit = "u2"\nbin_ms = 10\nlevels = [25]')
+    with pytest.raises(DataError) as info:
+        pipeline.check(write_spec(tmp_path, text))
+    [problem] = info.value.problems
+    assert problem.loc == ("panels", 1, "levels") and problem.got == "25"
+
+
+def test_several_units_need_a_unit_key(tmp_path):
+    text = MINIMAL_SPEC.replace('kind = "raster"\nunit = "u2"', 'kind = "raster"')
+    with pytest.raises(DataError, match="several units"):
+        pipeline.check(write_spec(tmp_path, text))
