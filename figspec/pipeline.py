@@ -8,7 +8,7 @@ Each step returns something a test or a notebook can stop at and inspect; ``rend
 from __future__ import annotations
 
 import difflib
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import TYPE_CHECKING, Sequence
 
@@ -22,7 +22,8 @@ from figspec.data.sources import load_source
 from figspec.errors import DataError, Problem, UserError
 from figspec.registry import PANEL_KINDS
 from figspec.spec.loader import LoadedSpec, load_spec
-from figspec.spec.models import PanelBase, source_name
+from figspec.spec.models import source_name
+from figspec.spec.panels import FIT_PARAMETERS, PanelBase
 from figspec.spec.style import Style, load_style
 
 if TYPE_CHECKING:
@@ -46,13 +47,22 @@ class Resolved:
 class Tables:
     """Computed tables: one per panel, and each panel's stimulus windows."""
 
-    panels: dict[str, pd.DataFrame]
+    panels: dict[str, pd.DataFrame | dict[str, pd.DataFrame]]
     stimulus: dict[str, pd.DataFrame]
 
     def for_export(self) -> dict[str, pd.DataFrame]:
-        """The tables written as source data: each panel's, and the stimulus windows."""
-        stim = pd.concat(list(self.stimulus.values()), ignore_index=True).drop_duplicates(ignore_index=True)
-        return {**self.panels, "stimulus": stim}
+        """The tables written as source data: each panel's (``<panel>`` or ``<panel>_<part>``),
+        and the stimulus windows of the level-repeated panels."""
+        out: dict[str, pd.DataFrame] = {}
+        for name, table in self.panels.items():
+            if isinstance(table, dict):
+                out.update({f"{name}_{part}": t for part, t in table.items()})
+            else:
+                out[name] = table
+        if self.stimulus:
+            frames = list(self.stimulus.values())
+            out["stimulus"] = pd.concat(frames, ignore_index=True).drop_duplicates(ignore_index=True)
+        return out
 
 
 def load(path: str | Path) -> LoadedSpec:
@@ -79,35 +89,78 @@ def resolve(spec: LoadedSpec) -> Resolved:
         src = source_name(model, panel)
         rec = recordings[src]
         unit = panel.unit
-        if unit is None and len(rec.units) == 1:
+        many = getattr(panel, "units", None)
+        if many is not None:
+            for j, name in enumerate(many):
+                problems += _unit_problems(name, rec, src, ("panels", i, "units", j))
+        elif unit is None and len(rec.units) == 1:
             unit = rec.units[0]
         elif unit is None:
             problems.append(Problem(f"source {src!r} holds several units: name one with 'unit' "
                                     f"(units: {', '.join(rec.units)})", ("panels", i)))
-        elif unit not in rec.units:
-            close = difflib.get_close_matches(unit, rec.units, n=1)
-            hint = f"; did you mean {close[0]!r}?" if close else f"; units: {', '.join(rec.units)}"
-            problems.append(Problem(f"no such unit in source {src!r}{hint}", ("panels", i, "unit"), repr(unit)))
+        else:
+            problems += _unit_problems(unit, rec, src, ("panels", i, "unit"))
+        shown = rec.levels if panel.levels is None else np.asarray(panel.levels, dtype=float)
         if panel.levels is not None:
             missing = sorted(set(panel.levels) - set(rec.levels.tolist()))
             if missing:
                 problems.append(Problem(f"levels not presented in source {src!r} "
                                         f"(presented: {', '.join(f'{v:g}' for v in rec.levels)})",
                                         ("panels", i, "levels"), ", ".join(f"{v:g}" for v in missing)))
+        fit = getattr(panel, "fit", "none")
+        if fit != "none" and len(shown) < FIT_PARAMETERS[fit]:
+            problems.append(Problem(f"a {fit} fit has {FIT_PARAMETERS[fit]} parameters but the panel shows "
+                                    f"only {len(shown)} levels", ("panels", i, "fit"), repr(fit)))
+        if getattr(panel, "level_axis", "linear") == "log" and np.any(shown <= 0):
+            problems.append(Problem("a logarithmic level axis needs every level > 0",
+                                    ("panels", i, "level_axis"), f"levels from {shown.min():g}"))
+        problems += _window_problems(panel, rec, i)
         panels.append(panel.model_copy(update={"source": src, "unit": unit}))
     if problems:
         raise spec.error(problems, DataError)
     return Resolved(spec=spec, recordings=recordings, panels=tuple(panels), style=style)
 
 
+def _unit_problems(unit: str, rec: Recording, src: str, loc: tuple) -> list[Problem]:
+    if unit in rec.units:
+        return []
+    close = difflib.get_close_matches(unit, rec.units, n=1)
+    hint = f"; did you mean {close[0]!r}?" if close else f"; units: {', '.join(rec.units)}"
+    return [Problem(f"no such unit in source {src!r}{hint}", loc, repr(unit))]
+
+
+def _window_problems(panel: PanelBase, rec: Recording, i: int) -> list[Problem]:
+    """Windows must lie within one trial: inside the shortest gap between stimulus onsets."""
+    onsets = np.sort(rec.trials["onset_s"].to_numpy(dtype=float))
+    if onsets.size < 2 or not np.any(np.diff(onsets) > 0):
+        return []
+    gap_ms = float(np.min(np.diff(onsets)[np.diff(onsets) > 0]) * 1e3)
+    problems = []
+    for key in ("window_ms", "response_ms", "baseline_ms"):
+        window = getattr(panel, key, None)
+        if window is not None and (window[1] > gap_ms or window[0] < -gap_ms):
+            problems.append(Problem(f"reaches outside the trial: stimulus onsets are only {gap_ms:.0f} ms "
+                                    "apart, so spikes there belong to the next or previous trial",
+                                    ("panels", i, key), f"[{window[0]:g}, {window[1]:g}]"))
+    return problems
+
+
 def compute(resolved: Resolved) -> Tables:
     """Step 3: every panel's table (pure functions from the registry) and stimulus windows."""
-    stimulus = resolved.spec.model.stimulus
+    model = resolved.spec.model
     panels, stim = {}, {}
-    for panel in resolved.panels:
+    for i, panel in enumerate(resolved.panels):
         rec = resolved.recording(panel)
-        panels[panel.name] = PANEL_KINDS[panel.kind].compute(rec, panel)
-        table = stimulus_table(rec, panel.unit, stimulus)
+        kind = PANEL_KINDS[panel.kind]
+        try:
+            panels[panel.name] = kind.compute(rec, panel, model.levels)
+        except UserError as err:
+            raise type(err)([resolved.spec.locate(replace(p, loc=("panels", i) + p.loc))
+                             for p in err.problems]) from None
+        if kind.layout != "rows":
+            continue
+        table = stimulus_table(rec, (panel.units or [panel.unit])[0] if hasattr(panel, "units") else panel.unit,
+                               model.stimulus)
         if panel.levels is not None:
             table = table[table["level"].isin(panel.levels)].reset_index(drop=True)
         stim[panel.name] = table
@@ -115,43 +168,52 @@ def compute(resolved: Resolved) -> Tables:
 
 
 def row_levels(resolved: Resolved, tables: Tables) -> list[float]:
-    """The levels of the grid's rows, top to bottom."""
-    levels = sorted({float(v) for t in tables.panels.values() for v in t["level"].unique()})
+    """The levels of the level-repeated panels' rows, top to bottom."""
+    levels = sorted({float(v) for p in resolved.panels if PANEL_KINDS[p.kind].layout == "rows"
+                     for v in tables.panels[p.name]["level"].unique()})
     return levels[::-1] if resolved.spec.model.levels.order == "high_at_top" else levels
 
 
 def draw(resolved: Resolved, tables: Tables) -> "Figure":
-    """Step 4: lay out the grid and draw every panel from its table (call inside ``styled``)."""
-    from figspec.draw.labels import label_grid
-    from figspec.draw.layout import new_grid
+    """Step 4: lay out the panels and draw each from its table (call inside ``styled``)."""
+    from figspec.draw.context import DrawContext
+    from figspec.draw.labels import label_column, label_rows, label_single
+    from figspec.draw.layout import new_layout
     from figspec.draw.psth import rate_label
     from figspec.draw.shading import level_opacity, shade_stimulus
 
     model = resolved.spec.model
+    ctx = DrawContext(style=resolved.style, levels=model.levels)
     levels = row_levels(resolved, tables)
-    fig, axes = new_grid(model.figure, len(levels), len(resolved.panels))
+    layouts = [PANEL_KINDS[p.kind].layout for p in resolved.panels]
+    fig, cells = new_layout(model.figure, layouts, len(levels))
     row_of = {level: r for r, level in enumerate(levels)}
-    all_levels = np.asarray(levels)
-    titles, x_labels = [], []
+    first_rows = layouts.index("rows") if "rows" in layouts else None
     for c, panel in enumerate(resolved.panels):
         kind = PANEL_KINDS[panel.kind]
         table = tables.panels[panel.name]
+        title = panel.title if panel.title is not None else kind.default_title
+        if kind.layout == "single":
+            kind.draw(cells[c], table, panel, ctx)
+            label_single(cells[c], title)
+            continue
+        column = cells[c]
         present = {float(v) for v in table["level"].unique()}
-        by_level = {level: axes[row_of[level], c] for level in present}
-        for level, ax in ((lv, axes[row_of[lv], c]) for lv in levels if lv not in present):
-            ax.set_axis_off()
+        by_level = {level: column[row_of[level]] for level in present}
+        for level in levels:
+            if level not in present:
+                column[row_of[level]].set_axis_off()
         for _, window in tables.stimulus[panel.name].iterrows():
             level = float(window["level"])
-            alpha = float(level_opacity(level, all_levels, model.stimulus.opacity))
+            alpha = float(level_opacity(level, np.asarray(levels), model.stimulus.opacity))
             shade_stimulus(by_level[level], window, alpha, resolved.style)
-        kind.draw(by_level, table, panel, resolved.style)
-        titles.append(panel.title if panel.title is not None else kind.default_title)
-        x_labels.append(panel.x_label or "")
-        if panel.kind == "psth" and c > 0:
-            axes[len(levels) // 2, c].set_ylabel(rate_label(table, panel))
-    counts = _trial_counts(tables, levels)
-    row_labels = [f"{model.levels.label(level)}\nn = {counts[level]}" for level in levels]
-    label_grid(axes, row_labels, titles, x_labels)
+        kind.draw(by_level, table, panel, ctx)
+        label_column(column, title, panel.x_label)
+        if panel.kind == "psth" and c != first_rows:
+            column[len(levels) // 2].set_ylabel(rate_label(table, panel))
+    if first_rows is not None:
+        counts = _trial_counts(tables, levels)
+        label_rows(cells[first_rows], [f"{model.levels.label(lv)}\nn = {counts[lv]}" for lv in levels])
     return fig
 
 

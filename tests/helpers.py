@@ -25,7 +25,7 @@ def build_recording(spikes: list[tuple], trials: list[tuple], time_unit: str = "
 
 def panel(kind: str, **keys):
     """A validated panel model of ``kind`` with test defaults."""
-    from figspec.spec.models import PsthPanel, RasterPanel
+    from figspec.spec.panels import PsthPanel, RasterPanel
 
     model = {"raster": RasterPanel, "psth": PsthPanel}[kind]
     return model.model_validate({"name": "p", "kind": kind, "unit": "u1", **keys})

@@ -1,15 +1,23 @@
-"""Peri-stimulus time histogram (binned rate) table."""
+"""Peri-stimulus time histogram (binned rate) table, optionally smoothed, z-scored or averaged
+across units."""
 
 from __future__ import annotations
+
+import warnings
 
 import numpy as np
 import pandas as pd
 
-from figspec.compute.selection import select
+from figspec.compute.optimal import choose_bandwidth, choose_bin_width
+from figspec.compute.selection import Selection, select
+from figspec.compute.smoothing import causal_smooth, gaussian_smooth
 from figspec.data.recording import Recording
-from figspec.spec.models import PsthPanel
+from figspec.errors import DataError, FigspecWarning, Problem
+from figspec.spec.panels import PsthPanel
 
-RATE_UNITS = {"spikes_per_s": "spikes/s", "spikes_per_trial": "spikes/trial", "count": "spikes"}
+RATE_UNITS = {"spikes_per_s": "spikes/s", "spikes_per_trial": "spikes/trial", "count": "spikes",
+              "z_score": "SD from baseline"}
+KERNEL_RESOLUTION_MS = 0.05
 
 
 def bin_edges(window_ms: tuple[float, float], bin_ms: float) -> np.ndarray:
@@ -18,25 +26,45 @@ def bin_edges(window_ms: tuple[float, float], bin_ms: float) -> np.ndarray:
     return window_ms[0] + bin_ms * np.arange(n + 1)
 
 
-def psth_table(rec: Recording, panel: PsthPanel) -> pd.DataFrame:
-    """Spike counts per level and bin, and the rate in the panel's measure.
+def level_groups(sel: Selection) -> list[tuple[np.ndarray, int]]:
+    """(pooled spike times, trials presented) of each level of a selection."""
+    levels, level_of_trial = np.unique(sel.trials["level"].to_numpy(), return_inverse=True)
+    n_trials = np.bincount(level_of_trial, minlength=levels.size)
+    spike_level = level_of_trial[sel.spike_trial]
+    return [(sel.time_ms[spike_level == i], int(n_trials[i])) for i in range(levels.size)]
 
-    The rate divides by the number of trials *presented* at the level (from the trial table),
-    not by the trials that happen to contain a spike: count / (n_trials x bin width) for
-    ``spikes_per_s`` (common practice), count / n_trials for ``spikes_per_trial``, the raw
-    summed count for ``count``. Bins are half-open, ``[start, stop)``.
 
-    Columns
-    -------
-    unit, level : as in the raster table.
-    bin_start_ms, bin_stop_ms : bin edges from stimulus onset (ms).
-    n_trials : trials presented at the level.
-    count : spikes in the bin summed over those trials.
-    rate : the measure named in ``rate_unit``.
-    rate_unit : ``spikes/s``, ``spikes/trial`` (per bin) or ``spikes`` (per bin, summed).
-    """
-    sel = select(rec, panel.unit, panel.window_ms, panel.levels)
-    edges = bin_edges(panel.window_ms, panel.bin_ms)
+def resolve_widths(rec: Recording, panel: PsthPanel, units: list[str]) -> tuple[float, float | None]:
+    """The bin width and kernel width (ms) to use, choosing 'auto' ones from the data."""
+    sels = [select(rec, u, panel.window_ms, panel.levels) for u in units]
+    groups = [g for sel in sels for g in level_groups(sel)]
+    bin_ms = panel.bin_ms
+    if bin_ms == "auto":
+        choice = choose_bin_width(groups, panel.window_ms, panel.bin_search_ms)
+        if not choice.interior:
+            raise DataError(Problem(
+                "'auto' found no minimum of the Shimazaki & Shinomoto (2007) cost inside bin_search_ms "
+                f"{list(panel.bin_search_ms)} (lowest cost at its edge, {choice.best:.3g} ms): usually too "
+                "few trials or spikes; give bin_ms a number or widen bin_search_ms", ("bin_ms",), "'auto'"))
+        bin_ms = choice.best
+    kernel = panel.kernel_ms
+    if kernel == "auto":
+        length = panel.window_ms[1] - panel.window_ms[0]
+        choice = choose_bandwidth(groups, (max(KERNEL_RESOLUTION_MS * 4, bin_ms / 4), length / 4),
+                                  KERNEL_RESOLUTION_MS)
+        if not choice.interior:
+            raise DataError(Problem(
+                "'auto' found no minimum of the Shimazaki & Shinomoto (2010) kernel cost between "
+                f"{choice.candidates[0]:.3g} and {choice.candidates[-1]:.3g} ms: usually too few trials "
+                "or spikes; give kernel_ms a number", ("kernel_ms",), "'auto'"))
+        kernel = choice.best
+    return float(bin_ms), kernel
+
+
+def unit_rates(rec: Recording, unit: str, panel: PsthPanel, bin_ms: float, kernel_ms: float | None) -> pd.DataFrame:
+    """One unit's PSTH table (see :func:`psth_table`)."""
+    sel = select(rec, unit, panel.window_ms, panel.levels)
+    edges = bin_edges(panel.window_ms, bin_ms)
     n_bins = edges.size - 1
     levels, level_of_trial = np.unique(sel.trials["level"].to_numpy(), return_inverse=True)
     n_trials = np.bincount(level_of_trial, minlength=levels.size)
@@ -44,16 +72,74 @@ def psth_table(rec: Recording, panel: PsthPanel) -> pd.DataFrame:
     bins = np.clip(bins, 0, n_bins - 1)  # guards round-off at the edges; times are inside the window
     flat = level_of_trial[sel.spike_trial] * n_bins + bins
     counts = np.bincount(flat, minlength=levels.size * n_bins).reshape(levels.size, n_bins)
-    trials = np.repeat(n_trials, n_bins)
-    count = counts.ravel()
-    if panel.measure == "spikes_per_s":
-        rate = count / (trials * panel.bin_ms * 1e-3)
+    per_trial = counts / n_trials[:, None]
+    if panel.measure == "count":
+        rate = counts.astype(float)
     elif panel.measure == "spikes_per_trial":
-        rate = count / trials
+        rate = per_trial
     else:
-        rate = count.astype(float)
-    return pd.DataFrame({"unit": panel.unit, "level": np.repeat(levels, n_bins),
+        rate = per_trial / (bin_ms * 1e-3)
+    if panel.smooth == "gaussian":
+        rate = gaussian_smooth(rate, kernel_ms / bin_ms)
+    elif panel.smooth == "causal":
+        rate = causal_smooth(rate, kernel_ms / bin_ms)
+    if panel.measure == "z_score":
+        rate = _z_score(rate, edges, panel, unit)
+    return pd.DataFrame({"unit": unit, "level": np.repeat(levels, n_bins),
                          "bin_start_ms": np.tile(edges[:-1], levels.size),
                          "bin_stop_ms": np.tile(edges[1:], levels.size),
-                         "n_trials": trials, "count": count, "rate": rate,
-                         "rate_unit": RATE_UNITS[panel.measure]})
+                         "n_trials": np.repeat(n_trials, n_bins), "count": counts.ravel(),
+                         "rate": rate.ravel(), "rate_unit": RATE_UNITS[panel.measure]})
+
+
+def _z_score(rate: np.ndarray, edges: np.ndarray, panel: PsthPanel, unit: str) -> np.ndarray:
+    """(rate - baseline mean) / baseline SD (ddof = 1) per level, over the bins that lie wholly
+    inside the baseline (``baseline_ms``, else every bin before onset)."""
+    start, stop = panel.baseline_ms or (panel.window_ms[0], 0.0)
+    base = (edges[:-1] >= start - 1e-9) & (edges[1:] <= stop + 1e-9)
+    if base.sum() < 2:
+        raise DataError(Problem("z-scores need at least two whole bins in the baseline", ("baseline_ms",)))
+    mean = rate[:, base].mean(axis=1, keepdims=True)
+    sd = rate[:, base].std(axis=1, ddof=1, keepdims=True)
+    if np.any(sd == 0):
+        warnings.warn(f"unit {unit}: the baseline rate does not vary at some levels, so their z-scores "
+                      "are undefined (left empty)", FigspecWarning, stacklevel=3)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.where(sd > 0, (rate - mean) / np.where(sd > 0, sd, 1.0), np.nan)
+
+
+def psth_table(rec: Recording, panel: PsthPanel) -> pd.DataFrame:
+    """Spike counts per level and bin, and the rate in the panel's measure.
+
+    The rate divides by the number of trials *presented* at the level (from the trial table),
+    not by the trials that happen to contain a spike: count / (n_trials x bin width) for
+    ``spikes_per_s`` (common practice), count / n_trials for ``spikes_per_trial``, the raw
+    summed count for ``count``; ``z_score`` is the spikes/s rate less its baseline mean, over
+    its baseline SD. Smoothing (Gaussian or causal exponential) applies to the rate before any
+    z-score. Bins are half-open, ``[start, stop)``.
+
+    Columns
+    -------
+    unit, level : as in the raster table (``unit`` is "mean of ..." for a population).
+    bin_start_ms, bin_stop_ms : bin edges from stimulus onset (ms).
+    n_trials : trials presented at the level (summed over units for a population).
+    count : spikes in the bin summed over those trials (and units).
+    rate : the measure named in ``rate_unit`` (the mean across units for a population).
+    rate_unit : ``spikes/s``, ``spikes/trial`` (per bin), ``spikes`` (per bin, summed) or
+        ``SD from baseline``.
+    rate_sem, n_units : population only: SEM across units (ddof = 1) and the number of units.
+    """
+    units = panel.units or [panel.unit]
+    bin_ms, kernel_ms = resolve_widths(rec, panel, units)
+    frames = [unit_rates(rec, u, panel, bin_ms, kernel_ms) for u in units]
+    if len(frames) == 1:
+        return frames[0]
+    both = pd.concat(frames, ignore_index=True)
+    keys = ["level", "bin_start_ms", "bin_stop_ms"]
+    grouped = both.groupby(keys, sort=True)
+    out = grouped.agg(n_trials=("n_trials", "sum"), count=("count", "sum"), rate=("rate", "mean"),
+                      rate_sem=("rate", lambda r: r.std(ddof=1) / np.sqrt(r.count())),
+                      n_units=("rate", "count")).reset_index()
+    out.insert(0, "unit", "mean of " + ", ".join(units))
+    out["rate_unit"] = frames[0]["rate_unit"].iloc[0]
+    return out[["unit", *keys, "n_trials", "count", "rate", "rate_unit", "rate_sem", "n_units"]]

@@ -7,7 +7,7 @@ import pandas as pd
 
 from figspec.compute.selection import select
 from figspec.data.recording import Recording
-from figspec.spec.models import RasterPanel
+from figspec.spec.panels import RasterPanel
 
 COLUMNS = ("unit", "level", "trial", "row", "time_ms")
 

@@ -1,11 +1,22 @@
-"""Apply a style only inside a context, so nothing leaks between figures."""
+"""What draw functions receive besides axes, table and panel; and the style applied only
+inside a context, so nothing leaks between figures."""
 
 from __future__ import annotations
 
 import contextlib
+from dataclasses import dataclass
 from typing import Iterator
 
+from figspec.spec.models import LevelSpec
 from figspec.spec.style import Style
+
+
+@dataclass(frozen=True)
+class DrawContext:
+    """Figure-wide settings a draw function may read."""
+
+    style: Style
+    levels: LevelSpec
 
 
 @contextlib.contextmanager

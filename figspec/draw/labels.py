@@ -1,4 +1,4 @@
-"""Row labels (level and trial count), column titles and axis labels of a level grid."""
+"""Row labels (level and trial count), column titles and axis labels."""
 
 from __future__ import annotations
 
@@ -12,16 +12,19 @@ if TYPE_CHECKING:
 TIME_LABEL = "Time from stimulus onset (ms)"
 
 
-def label_grid(axes: np.ndarray, row_labels: list[str], column_titles: list[str],
-               x_labels: list[str]) -> None:
-    """Label a level grid: rows on the left of the first column, one title per column on the
-    top row, x tick labels and the x label only on the bottom row."""
-    n_rows, n_cols = axes.shape
-    for r in range(n_rows):
-        ax: Axes = axes[r, 0]
-        ax.set_ylabel(row_labels[r], rotation=0, ha="right", va="center", labelpad=4)
-    for c in range(n_cols):
-        axes[0, c].set_title(column_titles[c])
-        axes[-1, c].set_xlabel(x_labels[c] or TIME_LABEL)
-        for r in range(n_rows - 1):
-            axes[r, c].tick_params(labelbottom=False)
+def label_rows(column: np.ndarray, row_labels: list[str]) -> None:
+    """Row labels on the left of a column of level axes."""
+    for ax, text in zip(column, row_labels):
+        ax.set_ylabel(text, rotation=0, ha="right", va="center", labelpad=4)
+
+
+def label_column(column: np.ndarray, title: str, x_label: str | None) -> None:
+    """One title on the top axes; x tick labels and the x label only on the bottom one."""
+    column[0].set_title(title)
+    column[-1].set_xlabel(x_label or TIME_LABEL)
+    for ax in column[:-1]:
+        ax.tick_params(labelbottom=False)
+
+
+def label_single(ax: "Axes", title: str) -> None:
+    ax.set_title(title)

@@ -7,14 +7,14 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
-from figspec.spec.models import RasterPanel
-from figspec.spec.style import Style
+from figspec.spec.panels import RasterPanel
+from figspec.draw.context import DrawContext
 
 if TYPE_CHECKING:
     from matplotlib.axes import Axes
 
 
-def draw_raster(axes: dict[float, "Axes"], table: pd.DataFrame, panel: RasterPanel, style: Style) -> None:
+def draw_raster(axes: dict[float, "Axes"], table: pd.DataFrame, panel: RasterPanel, ctx: DrawContext) -> None:
     """Draw each level's rows of the raster table into its axes.
 
     Trial 0 is the top line. Every trial presented has a line, so trials with no spike stay
@@ -22,6 +22,7 @@ def draw_raster(axes: dict[float, "Axes"], table: pd.DataFrame, panel: RasterPan
     """
     from matplotlib.collections import LineCollection
 
+    style = ctx.style
     half = style.raster.tick_height / 2
     levels = table["level"].to_numpy()
     bounds = np.flatnonzero(np.r_[True, levels[1:] != levels[:-1], True])

@@ -6,7 +6,7 @@ import difflib
 import hashlib
 import types
 import typing
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Any, TypeVar
 
@@ -67,8 +67,22 @@ def validate(model: type[M], data: dict[str, Any], path: Path, text: str) -> M:
     try:
         return model.model_validate(data)
     except ValidationError as err:
-        problems = [problem_from_pydantic(model, e) for e in err.errors(include_url=False)]
+        problems = _merge_union_errors([problem_from_pydantic(model, e) for e in err.errors(include_url=False)])
         raise SpecError([p.located(str(path), line_for(lines, p.loc)) for p in problems]) from None
+
+
+def _merge_union_errors(problems: list[Problem]) -> list[Problem]:
+    """One problem per key path: a value that fits no member of a union of plain types (a
+    number or 'auto') gives one error per member, joined here with "or"."""
+    merged: dict[Loc, Problem] = {}
+    for problem in problems:
+        first = merged.get(problem.loc)
+        if first is None:
+            merged[problem.loc] = problem
+        elif problem.message not in first.message:
+            merged[problem.loc] = replace(first, message=f"{first.message}, or {problem.message[0].lower()}"
+                                                         f"{problem.message[1:]}")
+    return list(merged.values())
 
 
 def load_spec(path: str | Path) -> LoadedSpec:

@@ -10,10 +10,11 @@ from __future__ import annotations
 
 from typing import Annotated, Literal, Union
 
-from pydantic import Field, ValidationInfo, field_validator, model_validator
+from pydantic import Field, model_validator
 
 from figspec.errors import Problem
-from figspec.spec.types import Fraction, Frozen, Millimetres, Name, PositiveMs, WindowMs
+from figspec.spec.panels import Panel, PanelBase
+from figspec.spec.types import Fraction, Frozen, Millimetres, Name
 
 Format = Literal["svg", "pdf", "png"]
 ALL_FORMATS: tuple[Format, ...] = ("svg", "pdf", "png")
@@ -36,6 +37,18 @@ class LevelSpec(Frozen):
     quantity: str = "Level"
     unit: str = ""
     order: Literal["high_at_top", "low_at_top"] = "high_at_top"
+    scale: Literal["pressure_db", "power_db", "linear"] | None = None
+
+    @model_validator(mode="after")
+    def _db_scale(self) -> "LevelSpec":
+        if self.scale == "linear" and "db" in self.unit.lower():
+            raise ValueError(f"levels in {self.unit!r} are logarithmic: set scale to 'pressure_db' "
+                             "(sound pressure, voltage, current) or 'power_db' (power, intensity)")
+        return self
+
+    @property
+    def axis_label(self) -> str:
+        return f"{self.quantity} ({self.unit})" if self.unit else self.quantity
 
     def label(self, value: float) -> str:
         text = f"{value:g}"
@@ -122,50 +135,6 @@ class SourceSpec(Frozen):
         return self
 
 
-class PanelBase(Frozen):
-    """Keys every panel kind has."""
-
-    name: Name
-    source: str | None = None
-    unit: str | None = None
-    repeat: Literal["level"] = "level"
-    levels: list[float] | None = None
-    window_ms: WindowMs = (-50.0, 150.0)
-    title: str | None = None
-    x_label: str | None = None
-
-
-class RasterPanel(PanelBase):
-    """``kind = "raster"``: one tick per spike, one line per trial presented."""
-
-    kind: Literal["raster"]
-
-
-class PsthPanel(PanelBase):
-    """``kind = "psth"``: spikes binned in time, summed over the trials presented."""
-
-    kind: Literal["psth"]
-    bin_ms: PositiveMs = 5.0
-    measure: Literal["spikes_per_s", "spikes_per_trial", "count"] = "spikes_per_s"
-    lock_y: bool = True
-    y_max: Annotated[float, Field(gt=0)] | None = None
-    y_label: str | None = None
-
-    @field_validator("bin_ms")
-    @classmethod
-    def _whole_bins(cls, bin_ms: float, info: ValidationInfo) -> float:
-        window = info.data.get("window_ms")
-        if window is not None:
-            n = (window[1] - window[0]) / bin_ms
-            if abs(n - round(n)) > 1e-6 * max(1.0, n):
-                raise ValueError(f"window_ms [{window[0]:g}, {window[1]:g}] must hold a whole number "
-                                 f"of bins ({n:.3g} bins of {bin_ms:g} ms)")
-        return bin_ms
-
-
-Panel = Annotated[Union[RasterPanel, PsthPanel], Field(discriminator="kind")]
-
-
 class FigureFile(Frozen):
     """The whole spec file."""
 
@@ -198,6 +167,11 @@ def cross_check(spec: FigureFile) -> list[Problem]:
         elif source_name(spec, panel) is None:
             problems.append(Problem(f"several sources exist, so the panel must name one of {sorted(spec.sources)}",
                                     ("panels", i)))
+        if getattr(panel, "units", None) is not None and panel.unit is not None:
+            problems.append(Problem("give either unit or units, not both", ("panels", i, "units")))
+        if getattr(panel, "fit", "none") != "none" and spec.levels.scale is None:
+            problems.append(Problem(f"a {panel.fit} fit needs the level's scale: set levels.scale to "
+                                    "'pressure_db', 'power_db' or 'linear'", ("panels", i, "fit")))
         src = spec.sources.get(source_name(spec, panel) or "")
         if spec.stimulus.per_trial and src is not None and (
             src.trials is None or src.trial_columns.onset is None or src.trial_columns.offset is None

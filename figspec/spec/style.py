@@ -50,10 +50,22 @@ class StimulusStyle(Frozen):
     range_hatch_opacity: Fraction
 
 
+class PaletteStyle(Frozen):
+    units: list[Colour] = Field(min_length=1)
+
+
+class SummaryStyle(Frozen):
+    marker_pt: Points
+    line_pt: Points
+    error_cap_pt: Annotated[float, Field(ge=0, le=20)]
+
+
 class Style(Frozen):
     """A resolved house style."""
 
     font: FontStyle
+    palette: PaletteStyle
+    summary: SummaryStyle
     axes: AxesStyle
     raster: RasterStyle
     rate: RateStyle
@@ -91,6 +103,11 @@ class Style(Frozen):
             "svg.fonttype": "none",
             "svg.hashsalt": "figspec",
             "path.simplify": False,
+            "legend.fontsize": f.tick_pt,
+            "legend.frameon": False,
+            "lines.linewidth": self.summary.line_pt,
+            "lines.markersize": self.summary.marker_pt,
+            "errorbar.capsize": self.summary.error_cap_pt,
         }
 
 

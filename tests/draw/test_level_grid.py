@@ -21,8 +21,10 @@ def drawn():
 
 
 def grid(fig, n_cols=2):
+    """Rows of [raster axes, rate axes]: each panel's column of axes is added top to bottom."""
     axes = fig.axes
-    return [axes[i:i + n_cols] for i in range(0, len(axes), n_cols)]
+    n_rows = len(axes) // n_cols
+    return [[axes[c * n_rows + r] for c in range(n_cols)] for r in range(n_rows)]
 
 
 def test_one_row_per_level_high_at_top(drawn):

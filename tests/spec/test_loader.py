@@ -35,7 +35,8 @@ def test_bad_value_reports_what_was_found(tmp_path):
     path = write_spec(tmp_path, MINIMAL_SPEC.replace("bin_ms = 10", "bin_ms = -5"))
     [problem] = problems_of(path)
     line = MINIMAL_SPEC.splitlines().index("bin_ms = 10") + 1
-    assert problem.format() == f"{path}:{line}: panels[1].bin_ms: Input should be greater than 0 (got -5)"
+    assert problem.format() == (f"{path}:{line}: panels[1].bin_ms: Input should be greater than 0, "
+                                "or input should be 'auto' (got -5)")
 
 
 def test_several_problems_are_all_reported(tmp_path):

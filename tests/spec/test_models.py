@@ -2,7 +2,8 @@ import pytest
 from pydantic import ValidationError
 
 from figspec.registry import PANEL_KINDS
-from figspec.spec.models import FigureFile, Panel, PsthPanel, StimulusSpec, cross_check
+from figspec.spec.models import FigureFile, StimulusSpec, cross_check
+from figspec.spec.panels import Panel, PsthPanel
 
 SOURCE = {"spikes": "s.csv", "trials": "t.csv"}
 

@@ -1,0 +1,129 @@
+"""Response latency per level: first spike, threshold crossing of the rate, Poisson surprise.
+
+References: review of onset-latency estimators, Levakova, Tamborrino, Ditlevsen & Lansky 2015,
+BioSystems 136:23-34; Poisson surprise, Legendy & Salcman 1985, J Neurophysiol 53:926-939.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+from scipy.stats import poisson
+
+from figspec.compute.selection import select
+from figspec.compute.stats import bootstrap_ci
+from figspec.compute.trial_counts import counts_in, first_spikes
+from figspec.data.recording import Recording
+from figspec.spec.panels import LatencyPanel
+
+COLUMNS = ("unit", "level", "n_trials", "n_no_spike", "latency_ms", "ci_low_ms", "ci_high_ms", "method", "note")
+
+
+def _selection(rec: Recording, unit: str, panel: LatencyPanel):
+    window = (min(panel.baseline_ms[0], panel.response_ms[0]), max(panel.baseline_ms[1], panel.response_ms[1]) + 1e-9)
+    return select(rec, unit, window, panel.levels)
+
+
+def first_spike_latency(rec: Recording, unit: str, panel: LatencyPanel) -> pd.DataFrame:
+    """Median first-spike time per level in ``(response start, response stop]`` with a
+    percentile bootstrap CI across trials. Trials with no spike there are counted in
+    ``n_no_spike`` and left out of the median: they are not zero-latency trials."""
+    sel = _selection(rec, unit, panel)
+    first = first_spikes(sel, panel.response_ms)
+    level = sel.trials["level"].to_numpy()
+    rng = np.random.default_rng(panel.seed)
+    rows = []
+    for lv in np.unique(level):
+        times = first[level == lv]
+        valid = times[~np.isnan(times)]
+        median = float(np.median(valid)) if valid.size else np.nan
+        low, high = bootstrap_ci(valid, np.median, panel.confidence, panel.resamples, rng)
+        note = "" if valid.size >= 2 else "fewer than two trials with a spike"
+        rows.append((unit, lv, times.size, int(np.isnan(times).sum()), median, low, high, "first_spike", note))
+    return pd.DataFrame(rows, columns=list(COLUMNS))
+
+
+def _level_rates(sel, level_values, edges):
+    """Rates (spikes/s) per level and bin of width edges[1]-edges[0], over trials presented."""
+    levels, inverse = np.unique(level_values, return_inverse=True)
+    n_trials = np.bincount(inverse, minlength=levels.size)
+    inside = (sel.time_ms >= edges[0]) & (sel.time_ms < edges[-1])
+    bins = np.clip(np.searchsorted(edges, sel.time_ms[inside], side="right") - 1, 0, edges.size - 2)
+    flat = inverse[sel.spike_trial[inside]] * (edges.size - 1) + bins
+    counts = np.bincount(flat, minlength=levels.size * (edges.size - 1)).reshape(levels.size, -1)
+    return levels, n_trials, counts / n_trials[:, None] / ((edges[1] - edges[0]) * 1e-3)
+
+
+def threshold_latency(rec: Recording, unit: str, panel: LatencyPanel) -> pd.DataFrame:
+    """Onset as the start of the first bin in the response window that begins a run of
+    ``threshold_bins`` consecutive bins above baseline mean + ``threshold_sd`` x baseline SD
+    (ddof = 1) of the binned rate; baseline and response binned on one grid from
+    ``baseline_ms`` start."""
+    sel = _selection(rec, unit, panel)
+    start, w = panel.baseline_ms[0], panel.bin_ms
+    n = int(np.ceil((panel.response_ms[1] - start) / w - 1e-9))
+    edges = start + w * np.arange(n + 1)
+    levels, n_trials, rate = _level_rates(sel, sel.trials["level"].to_numpy(), edges)
+    base = edges[1:] <= panel.baseline_ms[1] + 1e-9
+    resp = edges[:-1] >= panel.response_ms[0] - 1e-9
+    m = panel.threshold_bins
+    rows = []
+    for i, lv in enumerate(levels):
+        mu, sd = rate[i, base].mean(), rate[i, base].std(ddof=1)
+        above = (rate[i] > mu + panel.threshold_sd * sd) & resp
+        run = np.convolve(above.astype(int), np.ones(m, int), mode="full")[m - 1:]  # run[j]: bins j..j+m-1
+        hits = np.flatnonzero(run[: above.size] >= m)
+        latency = float(edges[hits[0]]) if hits.size else np.nan
+        note = "" if hits.size else f"no run of {m} bins above mean + {panel.threshold_sd:g} SD"
+        if sd == 0:
+            note = (note + "; " if note else "") + "baseline SD is 0"
+        rows.append((unit, lv, int(n_trials[i]), np.nan, latency, np.nan, np.nan, "threshold", note))
+    return pd.DataFrame(rows, columns=list(COLUMNS))
+
+
+def surprise_latency(rec: Recording, unit: str, panel: LatencyPanel) -> pd.DataFrame:
+    """Onset by Poisson surprise: with background rate r (spikes/s per trial, from the
+    baseline) and the level's spikes pooled over n trials, the k-th spike after response start,
+    at t_k, has surprise S = -log10 P(N >= k), N ~ Poisson(r n t_k) (P = poisson.sf(k - 1, r n
+    t_k)). The latency is the first t_k whose S reaches ``surprise``: the time at which the
+    response becomes improbable as background."""
+    sel = _selection(rec, unit, panel)
+    level = sel.trials["level"].to_numpy()
+    base = counts_in(sel, panel.baseline_ms)
+    base_s = (panel.baseline_ms[1] - panel.baseline_ms[0]) * 1e-3
+    inside = (sel.time_ms > panel.response_ms[0]) & (sel.time_ms <= panel.response_ms[1])
+    rows = []
+    for lv in np.unique(level):
+        at = level == lv
+        n = int(at.sum())
+        r = base[at].sum() / (n * base_s)
+        times = np.sort(sel.time_ms[inside & at[sel.spike_trial]]) - panel.response_ms[0]
+        k = np.arange(1, times.size + 1)
+        with np.errstate(divide="ignore"):
+            s = -np.log10(poisson.sf(k - 1, r * n * times * 1e-3))
+        hits = np.flatnonzero(s >= panel.surprise)
+        latency = float(times[hits[0]] + panel.response_ms[0]) if hits.size else np.nan
+        note = "" if hits.size else f"surprise never reaches {panel.surprise:g}"
+        if r == 0:
+            note = (note + "; " if note else "") + "no baseline spikes"
+        rows.append((unit, lv, n, np.nan, latency, np.nan, np.nan, "surprise", note))
+    return pd.DataFrame(rows, columns=list(COLUMNS))
+
+
+METHODS = {"first_spike": first_spike_latency, "threshold": threshold_latency, "surprise": surprise_latency}
+
+
+def latency_points(rec: Recording, panel: LatencyPanel, units: list[str]) -> pd.DataFrame:
+    """Latency per unit and level by the panel's method.
+
+    Columns
+    -------
+    unit, level : as elsewhere.
+    n_trials : trials presented.
+    n_no_spike : (first_spike) trials with no spike in the response window; empty otherwise.
+    latency_ms : median first spike, or onset by threshold crossing or surprise (ms from onset).
+    ci_low_ms, ci_high_ms : (first_spike) percentile bootstrap CI of the median.
+    method : which estimator.
+    note : why a value is missing, or a caveat.
+    """
+    return pd.concat([METHODS[panel.method](rec, u, panel) for u in units], ignore_index=True)
