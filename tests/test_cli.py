@@ -70,3 +70,43 @@ def test_inferred_trials_warn_on_stderr(tmp_path):
     result = figspec("check", path)
     assert result.returncode == 0, result.stderr
     assert "warning:" in result.stderr and "trials without any spike are missing" in result.stderr
+
+
+SUMMARY = MINIMAL_SPEC.replace('[stimulus]', '[levels]\nunit = "dB SPL"\nscale = "pressure_db"\n\n[stimulus]') + """
+[[panels]]
+name = "curve"
+kind = "level_response"
+units = ["u1", "u2"]
+fit = "naka_rushton"
+"""
+
+
+def test_summary_spec_checks(tmp_path):
+    result = figspec("check", write_spec(tmp_path, SUMMARY))
+    assert result.returncode == 0, result.stderr
+
+
+def test_response_window_outside_the_trial_exits_2(tmp_path):
+    text = SUMMARY.replace('fit = "naka_rushton"', 'fit = "naka_rushton"\nresponse_ms = [0, 800]\nbaseline_ms = [-800, 0]')
+    result = figspec("check", write_spec(tmp_path, text))
+    assert result.returncode == 2 and "Traceback" not in result.stderr
+    assert "panels[2].response_ms: reaches outside the trial" in result.stderr
+    assert "panels[2].baseline_ms: reaches outside the trial" in result.stderr
+
+
+def test_fit_on_fewer_levels_than_parameters_exits_2(tmp_path):
+    text = SUMMARY.replace('fit = "naka_rushton"', 'fit = "naka_rushton"\nlevels = [60, 70, 80]')
+    result = figspec("check", write_spec(tmp_path, text))
+    assert result.returncode == 2
+    assert "panels[2].fit: a naka_rushton fit has 4 parameters but the panel shows only 3 levels" in result.stderr
+
+
+def test_fit_without_a_level_scale_exits_2(tmp_path):
+    text = SUMMARY.replace('scale = "pressure_db"\n', "")
+    result = figspec("check", write_spec(tmp_path, text))
+    assert result.returncode == 2 and "panels[2].fit: a naka_rushton fit needs the level's scale" in result.stderr
+
+
+def test_negative_bin_exits_2(tmp_path):
+    result = figspec("check", write_spec(tmp_path, MINIMAL_SPEC.replace("bin_ms = 10", "bin_ms = -5")))
+    assert result.returncode == 2 and "panels[1].bin_ms: Input should be greater than 0" in result.stderr

@@ -85,12 +85,13 @@ def fit(model: str, level: np.ndarray, y: np.ndarray, sigma: np.ndarray | None, 
                          f"{level.size} levels with data for {n_par} parameters")
     weighted = sigma is not None and bool(np.all(np.isfinite(sigma) & (sigma > 0)))
     try:
-        with warnings.catch_warnings():
-            warnings.simplefilter("error", OptimizeWarning)
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always", OptimizeWarning)
             p, cov = curve_fit(f, level, y, p0=p0, sigma=sigma if weighted else None,
                                absolute_sigma=weighted, bounds=bounds, maxfev=20000)
-    except (RuntimeError, ValueError, OptimizeWarning) as err:
+    except (RuntimeError, ValueError) as err:
         return FitResult(model, names, empty, empty, empty, "failed", str(err).split("\n")[0])
+    singular = any(issubclass(w.category, OptimizeWarning) for w in caught)
     dof = level.size - n_par
     residual = y - f(level, *p)
     goodness = {"r_squared": float(1 - np.sum(residual ** 2) / np.sum((y - y.mean()) ** 2)) if y.size > 1 else np.nan,
@@ -99,7 +100,7 @@ def fit(model: str, level: np.ndarray, y: np.ndarray, sigma: np.ndarray | None, 
         goodness["chi_squared"] = float(np.sum((residual / sigma) ** 2))
         goodness["p_chi_squared"] = float(chi2.sf(goodness["chi_squared"], dof)) if dof > 0 else np.nan
     se = np.sqrt(np.diag(cov)) if np.all(np.isfinite(cov)) else np.full(n_par, np.inf)
-    if dof <= 0 or not np.all(np.isfinite(se)) or np.linalg.cond(cov) > CONDITION_LIMIT:
+    if singular or dof <= 0 or not np.all(np.isfinite(se)) or np.linalg.cond(cov) > CONDITION_LIMIT:
         return FitResult(model, names, p, empty, empty, "ill-conditioned",
                          "parameters are not determined by the data (no degrees of freedom or a singular "
                          "covariance)", goodness, weighted)

@@ -67,3 +67,25 @@ def test_cross_checks_name_the_key():
     problems = {p.loc: p for p in cross_check(spec)}
     assert ("panels", 0, "source") in problems
     assert ("panels", 1, "name") in problems
+
+
+@pytest.mark.parametrize("keys, fragment", [
+    ({"smooth": "gaussian"}, "needs kernel_ms"),
+    ({"kernel_ms": 3}, "smooth is 'none'"),
+    ({"smooth": "causal", "kernel_ms": "auto"}, "for smooth = 'gaussian'"),
+    ({"measure": "z_score", "window_ms": [0, 100]}, "pre-stimulus bins"),
+    ({"baseline_ms": [-80, 0]}, "inside window_ms"),
+])
+def test_psth_option_combinations(keys, fragment):
+    with pytest.raises(ValidationError, match=fragment):
+        PsthPanel.model_validate({"name": "p", "kind": "psth", **keys})
+
+
+def test_db_levels_cannot_be_linear():
+    with pytest.raises(ValidationError, match="pressure_db"):
+        figure(levels={"unit": "dB SPL", "scale": "linear"})
+
+
+def test_summary_windows_must_sit_around_onset():
+    with pytest.raises(ValidationError, match="start at or after stimulus onset"):
+        figure(panels=[{"name": "l", "kind": "latency", "response_ms": [-5, 50]}])

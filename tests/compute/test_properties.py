@@ -1,0 +1,32 @@
+"""Properties every per-level computation keeps (Hypothesis)."""
+
+import pandas as pd
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from figspec.compute.latency import latency_points
+from figspec.compute.psth import psth_table
+from figspec.compute.raster import raster_table
+from figspec.compute.response import response_points
+from figspec.spec.panels import LatencyPanel, LevelResponsePanel
+
+from helpers import build_recording, panel
+
+trains = st.lists(st.lists(st.floats(-0.1, 0.2, allow_nan=False), max_size=12), min_size=2, max_size=8)
+
+
+@settings(max_examples=30, deadline=None)
+@given(trains, st.randoms(use_true_random=False))
+def test_row_order_of_the_spike_table_changes_no_result(spike_lists, shuffler):
+    trials = [(i + 1, (i % 2) * 20, float(i), float(i) + 0.05) for i in range(len(spike_lists))]
+    spikes = [("u1", i + 1, i + t) for i, train in enumerate(spike_lists) for t in train] + [("u1", 1, 9.0)]
+    shuffled = spikes[:]
+    shuffler.shuffle(shuffled)
+    a, b = build_recording(spikes, trials), build_recording(shuffled, trials)
+    lat = LatencyPanel.model_validate({"name": "l", "kind": "latency", "resamples": 200})
+    resp = LevelResponsePanel.model_validate({"name": "r", "kind": "level_response", "resamples": 200})
+    for compute in (lambda r: raster_table(r, panel("raster")),
+                    lambda r: psth_table(r, panel("psth", bin_ms=10)),
+                    lambda r: latency_points(r, lat, ["u1"]),
+                    lambda r: response_points(r, resp, ["u1"])):
+        pd.testing.assert_frame_equal(compute(a), compute(b))

@@ -1,0 +1,57 @@
+"""Artist checks of the summary demo figure (response and latency vs level)."""
+
+import numpy as np
+import pytest
+
+from figspec import pipeline
+from figspec.draw.context import styled
+
+from helpers import SPECS
+
+
+@pytest.fixture(scope="module")
+def drawn():
+    resolved = pipeline.resolve(pipeline.load(SPECS / "level_summary.toml"))
+    tables = pipeline.compute(resolved)
+    with styled(resolved.style):
+        fig = pipeline.draw(resolved, tables)
+        fig.canvas.draw()
+    axes = {ax.get_title(): ax for ax in fig.axes if ax.get_title()}
+    return resolved, tables, axes
+
+
+def by_gid(ax, prefix):
+    return {line.get_gid().split(":", 1)[1]: line for line in ax.lines if (line.get_gid() or "").startswith(prefix)}
+
+
+def test_response_panel_points_fits_and_thresholds(drawn):
+    _, tables, axes = drawn
+    ax = axes["Response vs level"]
+    points = tables.panels["response"]["points"]
+    filled, open_ = by_gid(ax, "points:"), by_gid(ax, "points_ns:")
+    assert set(filled) == {"u1", "u2", "u3"} and set(by_gid(ax, "fit:")) == {"u1", "u2", "u3"}
+    for unit, rows in points.groupby("unit"):
+        sig = rows[rows["significant"]]
+        np.testing.assert_array_equal(filled[unit].get_xdata(), sig["level"])
+        np.testing.assert_array_equal(filled[unit].get_ydata(), sig["response"])
+        assert len(open_[unit].get_xdata()) == (~rows["significant"]).sum()
+    colours = {line.get_color() for line in filled.values()}
+    assert len(colours) == 3
+    assert set(by_gid(ax, "threshold:")) == {"u1", "u2", "u3"}
+    assert ax.get_xlabel() == "Sound level (dB SPL)"
+    assert [t.get_text() for t in ax.get_legend().get_texts()] == ["u1", "u2", "u3", "threshold (test)"]
+
+
+def test_fit_curve_is_the_fit_table(drawn):
+    _, tables, axes = drawn
+    curve = tables.panels["latency"]["fit"]
+    line = by_gid(axes["Latency vs level"], "fit:")["u2"]
+    np.testing.assert_array_equal(line.get_ydata(), curve[curve["unit"] == "u2"]["latency_ms"])
+
+
+def test_population_panel_rows_share_limits_and_show_sem(drawn):
+    _, _, axes = drawn
+    fig = axes["Response vs level"].figure
+    population = [ax for ax in fig.axes if any(p.get_gid() == "rate_sem" for p in ax.patches)]
+    assert len(population) == 3
+    assert len({ax.get_ylim() for ax in population}) == 1
