@@ -43,3 +43,18 @@ def test_several_units_need_a_unit_key(tmp_path):
     text = MINIMAL_SPEC.replace('kind = "raster"\nunit = "u2"', 'kind = "raster"')
     with pytest.raises(DataError, match="several units"):
         pipeline.check(write_spec(tmp_path, text))
+
+
+def test_a_failed_fit_still_renders_the_data(tmp_path):
+    from figspec.errors import FigspecWarning
+
+    text = MINIMAL_SPEC.replace("[stimulus]", '[levels]\nunit = "dB SPL"\nscale = "pressure_db"\n\n[stimulus]') + (
+        '\n[[panels]]\nname = "lat"\nkind = "latency"\nunit = "u2"\nlevels = [60, 70, 80]\nfit = "pieron"\n')
+    with pytest.warns(FigspecWarning, match="pieron fit ill-conditioned"):
+        written = pipeline.render(write_spec(tmp_path, text), tmp_path / "out", ["png"])
+    assert (tmp_path / "out" / "spec.png") in written
+    import pandas as pd
+
+    params = pd.read_csv(tmp_path / "out" / "spec_data" / "lat_params.csv")
+    assert params.set_index("quantity").loc["status", "note"] == "ill-conditioned"
+    assert pd.read_csv(tmp_path / "out" / "spec_data" / "lat_fit.csv").empty

@@ -1,6 +1,7 @@
 """Properties every per-level computation keeps (Hypothesis)."""
 
 import pandas as pd
+import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
@@ -30,3 +31,16 @@ def test_row_order_of_the_spike_table_changes_no_result(spike_lists, shuffler):
                     lambda r: latency_points(r, lat, ["u1"]),
                     lambda r: response_points(r, resp, ["u1"])):
         pd.testing.assert_frame_equal(compute(a), compute(b))
+
+
+@settings(max_examples=30, deadline=None)
+@given(trains, st.integers(1, 4))
+def test_adding_silent_trials_lowers_every_rate(spike_lists, extra):
+    trials = [(i + 1, 20, float(i), float(i) + 0.05) for i in range(len(spike_lists))]
+    spikes = [("u1", i + 1, i + t) for i, train in enumerate(spike_lists) for t in train] + [("u1", 1, 9.0)]
+    more = trials + [(100 + j, 20, 100.0 + j, 100.05 + j) for j in range(extra)]
+    p = panel("psth", bin_ms=10)
+    before = psth_table(build_recording(spikes, trials), p)["rate"].to_numpy()
+    after = psth_table(build_recording(spikes, more), p)["rate"].to_numpy()
+    assert (after <= before).all() and ((after < before) | (before == 0)).all()
+    assert after == pytest.approx(before * len(trials) / (len(trials) + extra))
