@@ -76,11 +76,13 @@ def run(argv: Sequence[str] | None = None) -> int:
                 print(problem.format(), file=sys.stderr)
         for path in files:
             try:
+                resolved = pipeline.check(path)
+                for note in pipeline.notes(resolved):
+                    print(f"note: {note}", file=sys.stderr)
                 if args.command == "render":
-                    written = pipeline.render(path, args.outdir, formats)
+                    written = pipeline.render(path, args.outdir, formats, resolved=resolved)
                     print(f"{path}: wrote {len(written)} files to {args.outdir}")
                 else:
-                    resolved = pipeline.check(path)
                     print(f"{path}: ok ({len(resolved.panels)} panels)")
             except UserError as err:
                 failed = True

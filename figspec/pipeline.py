@@ -146,7 +146,8 @@ def _window_problems(panel: PanelBase, rec: Recording, i: int) -> list[Problem]:
 
 
 def compute(resolved: Resolved) -> Tables:
-    """Step 3: every panel's table (pure functions from the registry) and stimulus windows."""
+    """Step 3: every panel's table (pure functions from the registry) and, for panels with time
+    on x, the stimulus windows of the levels (and units) they show."""
     model = resolved.spec.model
     panels, stim = {}, {}
     for i, panel in enumerate(resolved.panels):
@@ -159,72 +160,65 @@ def compute(resolved: Resolved) -> Tables:
                              for p in err.problems]) from None
         if kind.layout != "rows":
             continue
-        table = stimulus_table(rec, (panel.units or [panel.unit])[0] if hasattr(panel, "units") else panel.unit,
-                               model.stimulus)
+        units = panel.units if getattr(panel, "units", None) and panel.repeat == "unit" else \
+            [(getattr(panel, "units", None) or [panel.unit])[0]]
+        table = pd.concat([stimulus_table(rec, u, model.stimulus) for u in units], ignore_index=True)
         if panel.levels is not None:
             table = table[table["level"].isin(panel.levels)].reset_index(drop=True)
         stim[panel.name] = table
     return Tables(panels=panels, stimulus=stim)
 
 
-def row_levels(resolved: Resolved, tables: Tables) -> list[float]:
-    """The levels of the level-repeated panels' rows, top to bottom."""
-    levels = sorted({float(v) for p in resolved.panels if PANEL_KINDS[p.kind].layout == "rows"
-                     for v in tables.panels[p.name]["level"].unique()})
-    return levels[::-1] if resolved.spec.model.levels.order == "high_at_top" else levels
+def notes(resolved: Resolved) -> list[str]:
+    """Things a reviewer should know that are not errors (printed by ``check`` and ``render``)."""
+    out = []
+    for i, panel in enumerate(resolved.panels):
+        if panel.kind == "psth" and not panel.lock_y and panel.arrange != "overlay":
+            out.append(f"{resolved.spec.path}: panels[{i}] ({panel.name}): lock_y = false, so its rows do "
+                       "not share one y scale: compare heights only within a row")
+    return out
+
+
+def _plan(resolved: Resolved, tables: Tables, panel: PanelBase):
+    """The groups (levels or units) a time panel repeats over, in display order, and their labels."""
+    from figspec.draw.compose import PanelPlan
+
+    model = resolved.spec.model
+    kind = PANEL_KINDS[panel.kind]
+    table = tables.panels[panel.name]
+    title = panel.title if panel.title is not None else kind.default_title
+    if kind.layout != "rows":
+        return PanelPlan(panel, table, None, kind.draw, title, [], [])
+    stim = tables.stimulus[panel.name]
+    counts = model.layout is None or model.layout.trial_counts
+    groups: list = []
+    labels: list[str] = []
+    if panel.arrange != "overlay":
+        if panel.repeat == "level":
+            groups = sorted({float(v) for v in table["level"]},
+                            reverse=model.levels.order == "high_at_top" and panel.arrange == "rows")
+            n = stim.groupby("level")["n_trials"].first()
+            labels = [model.levels.label(g) + (f"\nn = {int(n[g])}" if counts else "") for g in groups]
+        else:
+            groups = list(panel.units)
+            n = stim.groupby("unit")["n_trials"].first()
+            labels = [g + (f"\nn = {int(n[g])}" if counts else "") for g in groups]
+    y_label = None
+    if panel.kind == "psth":
+        from figspec.draw.psth import rate_label
+
+        y_label = rate_label(table, panel)
+    return PanelPlan(panel, table, stim, kind.draw, title, groups, labels, y_label)
 
 
 def draw(resolved: Resolved, tables: Tables) -> "Figure":
     """Step 4: lay out the panels and draw each from its table (call inside ``styled``)."""
+    from figspec.draw.compose import compose
     from figspec.draw.context import DrawContext
-    from figspec.draw.labels import label_column, label_rows, label_single
-    from figspec.draw.layout import new_layout
-    from figspec.draw.psth import rate_label
-    from figspec.draw.shading import level_opacity, shade_stimulus
 
     model = resolved.spec.model
     ctx = DrawContext(style=resolved.style, levels=model.levels)
-    levels = row_levels(resolved, tables)
-    layouts = [PANEL_KINDS[p.kind].layout for p in resolved.panels]
-    fig, cells = new_layout(model.figure, layouts, len(levels))
-    row_of = {level: r for r, level in enumerate(levels)}
-    first_rows = layouts.index("rows") if "rows" in layouts else None
-    for c, panel in enumerate(resolved.panels):
-        kind = PANEL_KINDS[panel.kind]
-        table = tables.panels[panel.name]
-        title = panel.title if panel.title is not None else kind.default_title
-        if kind.layout == "single":
-            kind.draw(cells[c], table, panel, ctx)
-            label_single(cells[c], title)
-            continue
-        column = cells[c]
-        present = {float(v) for v in table["level"].unique()}
-        by_level = {level: column[row_of[level]] for level in present}
-        for level in levels:
-            if level not in present:
-                column[row_of[level]].set_axis_off()
-        for _, window in tables.stimulus[panel.name].iterrows():
-            level = float(window["level"])
-            alpha = float(level_opacity(level, np.asarray(levels), model.stimulus.opacity))
-            shade_stimulus(by_level[level], window, alpha, resolved.style)
-        kind.draw(by_level, table, panel, ctx)
-        label_column(column, title, panel.x_label)
-        if panel.kind == "psth" and c != first_rows:
-            column[len(levels) // 2].set_ylabel(rate_label(table, panel))
-    if first_rows is not None:
-        counts = _trial_counts(tables, levels)
-        label_rows(cells[first_rows], [f"{model.levels.label(lv)}\nn = {counts[lv]}" for lv in levels])
-    return fig
-
-
-def _trial_counts(tables: Tables, levels: list[float]) -> dict[float, str]:
-    """Trials presented per level, as text ("30", or "28-30" when panels differ)."""
-    out = {}
-    stim = pd.concat(list(tables.stimulus.values()), ignore_index=True)
-    for level in levels:
-        n = sorted(set(stim.loc[stim["level"] == level, "n_trials"].astype(int)))
-        out[level] = str(n[0]) if len(n) == 1 else f"{n[0]}-{n[-1]}"
-    return out
+    return compose(model, [_plan(resolved, tables, p) for p in resolved.panels], ctx)
 
 
 def save(resolved: Resolved, tables: Tables, fig: "Figure", outdir: str | Path,
@@ -243,11 +237,13 @@ def check(path: str | Path) -> Resolved:
     return resolve(load(path))
 
 
-def render(path: str | Path, outdir: str | Path, formats: Sequence[str] | None = None) -> list[Path]:
-    """Load, resolve, compute, draw and save one spec; returns the files written."""
+def render(path: str | Path, outdir: str | Path, formats: Sequence[str] | None = None,
+           resolved: Resolved | None = None) -> list[Path]:
+    """Load, resolve, compute, draw and save one spec; returns the files written. Pass
+    ``resolved`` to skip loading again what :func:`check` already loaded."""
     from figspec.draw.context import styled
 
-    resolved = resolve(load(path))
+    resolved = resolved or resolve(load(path))
     tables = compute(resolved)
     with styled(resolved.style):
         fig = draw(resolved, tables)

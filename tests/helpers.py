@@ -64,3 +64,12 @@ kind = "psth"
 unit = "u2"
 bin_ms = 10
 """
+
+
+def draw_now(fig):
+    """Attach an Agg canvas and draw, so the layout engine has run and extents are final."""
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+
+    FigureCanvasAgg(fig)
+    fig.canvas.draw()
+    return fig

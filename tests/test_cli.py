@@ -110,3 +110,17 @@ def test_fit_without_a_level_scale_exits_2(tmp_path):
 def test_negative_bin_exits_2(tmp_path):
     result = figspec("check", write_spec(tmp_path, MINIMAL_SPEC.replace("bin_ms = 10", "bin_ms = -5")))
     assert result.returncode == 2 and "panels[1].bin_ms: Input should be greater than 0" in result.stderr
+
+
+def test_check_mentions_unlocked_rate_rows(tmp_path):
+    result = figspec("check", write_spec(tmp_path, MINIMAL_SPEC.replace("bin_ms = 10", "bin_ms = 10\nlock_y = false")))
+    assert result.returncode == 0
+    assert "note:" in result.stderr and "lock_y = false" in result.stderr and "panels[1] (rate)" in result.stderr
+
+
+def test_bad_layout_exits_2(tmp_path):
+    text = MINIMAL_SPEC.replace("[stimulus]", "[layout]\nrows = 1\ncolumns = 2\n\n[stimulus]")
+    text = text.replace('name = "spikes"', 'name = "spikes"\ncell = [1, 1]').replace('name = "rate"', 'name = "rate"\ncell = [1, 1]')
+    result = figspec("check", write_spec(tmp_path, text))
+    assert result.returncode == 2 and "Traceback" not in result.stderr
+    assert "panels[1].cell: cell [1, 1] is already taken by panels[0] ('spikes') (got [1, 1])" in result.stderr

@@ -1,4 +1,4 @@
-"""End-to-end image baseline of the demo level grid.
+"""End-to-end image baselines of the demo level grid and the composite figure.
 
 Refresh after an intended change: ``FIGSPEC_UPDATE_BASELINES=1 python -m pytest tests/test_end_to_end.py``
 then look at the new PNG before committing it.
@@ -24,15 +24,16 @@ RESULTS = ROOT / "result_images" / "test_end_to_end"
 TOLERANCE = 1.0
 
 
-def test_demo_level_grid_matches_baseline():
+@pytest.mark.parametrize("spec", [DEMO_SPEC, DEMO_SPEC.parent / "unit_composite.toml"], ids=["level_grid", "composite"])
+def test_demo_figure_matches_baseline(spec):
     RESULTS.mkdir(parents=True, exist_ok=True)
-    pipeline.render(DEMO_SPEC, RESULTS, ["png"])
-    actual = RESULTS / "level_grid.png"
-    expected = BASELINES / "level_grid.png"
+    pipeline.render(spec, RESULTS, ["png"])
+    actual = RESULTS / f"{spec.stem}.png"
+    expected = BASELINES / f"{spec.stem}.png"
     if os.environ.get("FIGSPEC_UPDATE_BASELINES"):
         BASELINES.mkdir(parents=True, exist_ok=True)
         shutil.copyfile(actual, expected)
         pytest.skip("baseline refreshed")
-    shutil.copyfile(expected, RESULTS / "level_grid-expected.png")
+    shutil.copyfile(expected, RESULTS / f"{spec.stem}-expected.png")
     failure = compare_images(str(expected), str(actual), tol=TOLERANCE)  # writes *-failed-diff.png
     assert failure is None, failure

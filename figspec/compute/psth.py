@@ -132,8 +132,8 @@ def psth_table(rec: Recording, panel: PsthPanel) -> pd.DataFrame:
     units = panel.units or [panel.unit]
     bin_ms, kernel_ms = resolve_widths(rec, panel, units)
     frames = [unit_rates(rec, u, panel, bin_ms, kernel_ms) for u in units]
-    if len(frames) == 1:
-        return frames[0]
+    if len(frames) == 1 or panel.repeat == "unit":
+        return pd.concat(frames, ignore_index=True)
     both = pd.concat(frames, ignore_index=True)
     keys = ["level", "bin_start_ms", "bin_stop_ms"]
     grouped = both.groupby(keys, sort=True)

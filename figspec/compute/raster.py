@@ -13,6 +13,13 @@ COLUMNS = ("unit", "level", "trial", "row", "time_ms")
 
 
 def raster_table(rec: Recording, panel: RasterPanel) -> pd.DataFrame:
+    """The raster table of the panel's unit, or of each of its ``units`` in turn (see
+    :func:`unit_raster`)."""
+    units = panel.units if panel.repeat == "unit" else [panel.unit]
+    return pd.concat([unit_raster(rec, u, panel) for u in units], ignore_index=True)
+
+
+def unit_raster(rec: Recording, unit: str, panel: RasterPanel) -> pd.DataFrame:
     """One row per spike in ``panel.window_ms``, plus one row per trial without a spike.
 
     Columns
@@ -24,7 +31,7 @@ def raster_table(rec: Recording, panel: RasterPanel) -> pd.DataFrame:
     time_ms : spike time from stimulus onset (ms); empty (NaN) for a trial with no spike in
         the window, so the trial is still counted and drawn as an empty line.
     """
-    sel = select(rec, panel.unit, panel.window_ms, panel.levels)
+    sel = select(rec, unit, panel.window_ms, panel.levels)
     has_spike = np.zeros(len(sel.trials), dtype=bool)
     has_spike[sel.spike_trial] = True
     idx = np.concatenate([sel.spike_trial, np.flatnonzero(~has_spike)])
@@ -32,6 +39,6 @@ def raster_table(rec: Recording, panel: RasterPanel) -> pd.DataFrame:
     order = np.lexsort((times, idx))   # NaN sorts last; empty trials have only NaN
     idx, times = idx[order], times[order]
     t = sel.trials
-    return pd.DataFrame({"unit": panel.unit, "level": t["level"].to_numpy()[idx],
+    return pd.DataFrame({"unit": unit, "level": t["level"].to_numpy()[idx],
                          "trial": t["trial"].to_numpy()[idx], "row": t["row"].to_numpy()[idx],
                          "time_ms": times}, columns=list(COLUMNS))

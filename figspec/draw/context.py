@@ -19,6 +19,11 @@ class DrawContext:
     levels: LevelSpec
 
 
+def group_key(repeat: str, value) -> float | str:
+    """How repeated axes are keyed: levels as floats, units as strings."""
+    return float(value) if repeat == "level" else str(value)
+
+
 @contextlib.contextmanager
 def styled(style: Style) -> Iterator[None]:
     """matplotlib settings of ``style`` from a clean default base, restored on exit."""

@@ -1,4 +1,5 @@
-"""Rate histogram rows, one step artist per axes, y scale locked across rows by default."""
+"""Rate histogram axes: one step artist per axes, y scale locked across repeats by default;
+or every level (unit) overlaid in one axes, coloured along a sequential map (palette)."""
 
 from __future__ import annotations
 
@@ -7,13 +8,14 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
+from figspec.draw.context import DrawContext, group_key
 from figspec.spec.panels import PsthPanel
-from figspec.draw.context import DrawContext
 
 if TYPE_CHECKING:
     from matplotlib.axes import Axes
 
-RATE_LABELS = {"spikes/s": "Rate (spikes/s)", "spikes/trial": "Spikes/trial per bin", "spikes": "Spikes per bin"}
+RATE_LABELS = {"spikes/s": "Rate (spikes/s)", "spikes/trial": "Spikes/trial per bin",
+               "spikes": "Spikes per bin", "SD from baseline": "Rate (z-score)"}
 
 
 def nice_top(value: float) -> float:
@@ -28,24 +30,32 @@ def nice_top(value: float) -> float:
     return float(10.0 ** (exponent + 1))
 
 
-def draw_psth(axes: dict[float, "Axes"], table: pd.DataFrame, panel: PsthPanel, ctx: DrawContext) -> None:
-    """Draw each level's bins of the rate table as a filled step outline.
-
-    With ``lock_y`` (default) every row gets the same y-limits, from ``y_max`` or from the
-    largest rate of any row rounded up, so a weak response looks weak next to a strong one.
-    """
-    style = ctx.style
-    population = "rate_sem" in table
-    signed = panel.measure == "z_score"
-    upper = table["rate"] + (table["rate_sem"].fillna(0) if population else 0)
-    lower = table["rate"] - (table["rate_sem"].fillna(0) if population else 0)
-    if not signed:
+def _bands(table: pd.DataFrame, panel: PsthPanel) -> tuple[pd.Series, pd.Series]:
+    """Lower and upper extent drawn for each bin (mean -/+ SEM for a population)."""
+    sem = table["rate_sem"].fillna(0) if "rate_sem" in table else 0.0
+    upper, lower = table["rate"] + sem, table["rate"] - sem
+    if panel.measure != "z_score":
         lower = lower.clip(lower=0.0)  # a rate is never negative: the band is cut at 0 (not the data)
+    return lower, upper
+
+
+def draw_psth(target, table: pd.DataFrame, panel: PsthPanel, ctx: DrawContext) -> None:
+    """Draw the rate table: into ``{group: axes}`` (one filled step outline per axes, with a
+    SEM band for a population), or into one axes when the panel is overlaid.
+
+    With ``lock_y`` (default) every repeat gets the same y-limits, from ``y_max`` or from the
+    largest value of any repeat rounded up, so a weak response looks weak next to a strong one.
+    """
+    lower, upper = _bands(table, panel)
     shared = _limits(lower, upper, panel)
-    for level, rows in table.groupby("level", sort=True):
-        ax = axes[float(level)]
+    if panel.arrange == "overlay":
+        _overlay(target, table, panel, ctx, shared)
+        return
+    style = ctx.style
+    for value, rows in table.groupby(panel.repeat, sort=False):
+        ax = target[group_key(panel.repeat, value)]
         edges = np.r_[rows["bin_start_ms"].to_numpy(), rows["bin_stop_ms"].to_numpy()[-1]]
-        if population:
+        if "rate_sem" in rows:
             ax.stairs(upper[rows.index].to_numpy(), edges, baseline=lower[rows.index].to_numpy(),
                       fill=True, color=style.rate.colour, alpha=0.3, linewidth=0, gid="rate_sem")
             ax.stairs(rows["rate"].to_numpy(), edges, color=style.rate.colour,
@@ -58,6 +68,44 @@ def draw_psth(axes: dict[float, "Axes"], table: pd.DataFrame, panel: PsthPanel, 
         ax.set_yticks([bottom, 0.0, top] if bottom < 0 else [bottom, top])
         ax.yaxis.set_major_formatter("{x:g}")
         ax.set_xlim(*panel.window_ms)
+
+
+def _overlay(ax: "Axes", table: pd.DataFrame, panel: PsthPanel, ctx: DrawContext, limits) -> None:
+    """One step line per level (sequential map, with a colour bar) or per unit (palette, key)."""
+    import matplotlib as mpl
+
+    groups = list(dict.fromkeys(table[panel.repeat]))
+    if panel.repeat == "level":
+        values = np.asarray(groups, dtype=float)
+        cmap = mpl.colormaps[ctx.style.palette.levels]
+        norm = mpl.colors.Normalize(values.min(), values.max() if values.max() > values.min() else values.min() + 1)
+        colours = {g: cmap(0.15 + 0.85 * norm(g)) for g in groups}     # skip the palest end
+    else:
+        palette = ctx.style.palette.units
+        colours = {g: palette[i % len(palette)] for i, g in enumerate(groups)}
+    for value, rows in table.groupby(panel.repeat, sort=False):
+        edges = np.r_[rows["bin_start_ms"].to_numpy(), rows["bin_stop_ms"].to_numpy()[-1]]
+        label = ctx.levels.label(value) if panel.repeat == "level" else str(value)
+        ax.stairs(rows["rate"].to_numpy(), edges, color=colours[value], linewidth=ctx.style.summary.line_pt,
+                  label=label, gid=f"rate:{value}")
+    ax.set_ylim(*limits)
+    ax.set_xlim(*panel.window_ms)
+    if panel.repeat == "level":
+        boundaries = np.r_[values[0] - 0.5 * _spacing(values), (values[1:] + values[:-1]) / 2,
+                           values[-1] + 0.5 * _spacing(values)]
+        listed = mpl.colors.ListedColormap([colours[g] for g in groups])
+        bar = ax.figure.colorbar(mpl.cm.ScalarMappable(mpl.colors.BoundaryNorm(boundaries, listed.N), listed),
+                                 ax=ax, ticks=values[:: max(1, len(values) // 5)], fraction=0.08, pad=0.02,
+                                 aspect=25)
+        bar.set_label(ctx.levels.axis_label)
+        bar.ax.yaxis.set_major_formatter("{x:g}")
+        bar.outline.set_linewidth(ctx.style.axes.line_pt)
+    else:
+        ax.legend(loc="upper right", handlelength=1.2)
+
+
+def _spacing(values: np.ndarray) -> float:
+    return float(np.min(np.diff(values))) if values.size > 1 else 1.0
 
 
 def _limits(lower: pd.Series, upper: pd.Series, panel: PsthPanel) -> tuple[float, float]:

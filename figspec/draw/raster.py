@@ -8,14 +8,14 @@ import numpy as np
 import pandas as pd
 
 from figspec.spec.panels import RasterPanel
-from figspec.draw.context import DrawContext
+from figspec.draw.context import DrawContext, group_key
 
 if TYPE_CHECKING:
     from matplotlib.axes import Axes
 
 
-def draw_raster(axes: dict[float, "Axes"], table: pd.DataFrame, panel: RasterPanel, ctx: DrawContext) -> None:
-    """Draw each level's rows of the raster table into its axes.
+def draw_raster(axes: dict, table: pd.DataFrame, panel: RasterPanel, ctx: DrawContext) -> None:
+    """Draw each level's (or unit's) rows of the raster table into its axes.
 
     Trial 0 is the top line. Every trial presented has a line, so trials with no spike stay
     visible as empty lines and the y extent is the number of trials.
@@ -24,10 +24,10 @@ def draw_raster(axes: dict[float, "Axes"], table: pd.DataFrame, panel: RasterPan
 
     style = ctx.style
     half = style.raster.tick_height / 2
-    levels = table["level"].to_numpy()
-    bounds = np.flatnonzero(np.r_[True, levels[1:] != levels[:-1], True])
+    groups = table[panel.repeat].to_numpy()
+    bounds = np.flatnonzero(np.r_[True, groups[1:] != groups[:-1], True])
     for lo, hi in zip(bounds[:-1], bounds[1:]):
-        ax = axes[float(levels[lo])]
+        ax = axes[group_key(panel.repeat, groups[lo])]
         rows = table["row"].to_numpy()[lo:hi]
         times = table["time_ms"].to_numpy()[lo:hi]
         n_trials = int(rows.max()) + 1

@@ -58,12 +58,16 @@ def draw_level_response(ax: "Axes", tables: dict[str, pd.DataFrame], panel: Leve
     if not panel.subtract_baseline:
         ax.set_ylim(bottom=0)
     handles, labels = ax.get_legend_handles_labels()
+    if len(colours) == 1:                        # one unit: the key explains markers only
+        handles, labels = [], []
     if tested:
         from matplotlib.lines import Line2D
 
         handles.append(Line2D([], [], marker=6, color="0.3", linestyle="none"))
         labels.append("threshold (test)")
     title = "filled: p < %g (Holm)" % panel.alpha if tested else None
+    if not handles and title is None:
+        return
     ax.legend(handles, labels, title=title, loc="upper left", title_fontsize=ctx.style.font.tick_pt,
               handletextpad=0.2, borderaxespad=0.2, alignment="left")
 
@@ -87,4 +91,5 @@ def draw_latency(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LatencyPane
     method = {"first_spike": "First-spike latency", "threshold": "Onset latency", "surprise": "Onset latency"}
     ax.set_ylabel(panel.y_label or f"{method[panel.method]} (ms)")
     ax.set_ylim(bottom=0)
-    ax.legend(loc="upper right", handletextpad=0.2, borderaxespad=0.2)
+    if len(colours) > 1:
+        ax.legend(loc="upper right", handletextpad=0.2, borderaxespad=0.2)

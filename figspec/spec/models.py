@@ -13,6 +13,7 @@ from typing import Annotated, Literal, Union
 from pydantic import Field, model_validator
 
 from figspec.errors import Problem
+from figspec.spec.layout import LayoutSpec, SharedGroup, grid_problems
 from figspec.spec.panels import Panel, PanelBase
 from figspec.spec.types import Fraction, Frozen, Millimetres, Name
 
@@ -66,7 +67,13 @@ class StimulusSpec(Frozen):
     start_ms: float | None = None
     stop_ms: float | None = None
     label: str = "Stimulus"
+    mark: Literal["shade", "bar"] = "shade"
+    encoding: Literal["opacity", "colormap", "wavelength"] = "opacity"
     opacity: tuple[Fraction, Fraction] = (0.08, 0.4)
+    opacity_scale: Literal["linear", "log"] = "linear"
+    colormap: str | None = None
+    wavelength_nm: Annotated[float, Field(ge=380, le=780)] | None = None
+    key: bool = True
 
     @model_validator(mode="after")
     def _one_window(self) -> "StimulusSpec":
@@ -79,6 +86,8 @@ class StimulusSpec(Frozen):
                                  "(or set per_trial = true to read it from the trial table)")
             if not self.start_ms < self.stop_ms:
                 raise ValueError(f"start_ms must be < stop_ms, got {self.start_ms:g} and {self.stop_ms:g}")
+        if self.encoding == "wavelength" and self.wavelength_nm is None:
+            raise ValueError("encoding = 'wavelength' needs wavelength_nm (380-780 nm)")
         lo, hi = self.opacity
         if lo > hi:
             raise ValueError(f"opacity is [lowest level, highest level] and must not fall, got [{lo:g}, {hi:g}]")
@@ -141,8 +150,10 @@ class FigureFile(Frozen):
     figure: FigureSpec = FigureSpec()
     levels: LevelSpec = LevelSpec()
     stimulus: StimulusSpec
+    layout: LayoutSpec | None = None
     sources: dict[Name, SourceSpec] = Field(min_length=1)
     panels: list[Panel] = Field(min_length=1)
+    shared: list[SharedGroup] = Field(default_factory=list)
 
 
 def source_name(spec: FigureFile, panel: PanelBase) -> str | None:
@@ -178,4 +189,11 @@ def cross_check(spec: FigureFile) -> list[Problem]:
         ):
             problems.append(Problem("stimulus.per_trial needs a trial table with onset and offset columns "
                                     f"in source {source_name(spec, panel)!r}", ("stimulus", "per_trial")))
+    problems += grid_problems(spec.layout, spec.panels, spec.shared)
+    for i, panel in enumerate(spec.panels):
+        if panel.kind == "raster" and getattr(panel, "rate_bar", None):
+            problems.append(Problem("rate_bar is for psth panels", ("panels", i, "rate_bar")))
+    if spec.stimulus.opacity_scale == "log" and spec.levels.unit.lower().startswith("db"):
+        problems.append(Problem("levels in dB are already logarithmic: use opacity_scale = 'linear'",
+                                ("stimulus", "opacity_scale"), "'log'"))
     return list(dict.fromkeys(problems))

@@ -15,28 +15,66 @@ from figspec.spec.types import Frozen, Name, PositiveMs, WindowMs
 Probability = Annotated[float, Field(gt=0, lt=1)]
 
 
+GridCell = tuple[Annotated[int, Field(ge=1)], Annotated[int, Field(ge=1)]]
+Step = Annotated[float, Field(gt=0)]
+
+
 class PanelBase(Frozen):
-    """Keys every panel kind has."""
+    """Keys every panel kind has: what to draw from, where in the grid, labels and ticks."""
 
     name: Name
     source: str | None = None
     unit: str | None = None
     levels: list[float] | None = None
+    cell: GridCell | None = None
+    span: GridCell = (1, 1)
     title: str | None = None
     x_label: str | None = None
+    x_ticks: list[float] | None = None
+    x_step: Step | None = None
+    y_ticks: list[float] | None = None
+    y_step: Step | None = None
+
+    @model_validator(mode="after")
+    def _ticks(self) -> "PanelBase":
+        for axis in ("x", "y"):
+            if getattr(self, f"{axis}_ticks") is not None and getattr(self, f"{axis}_step") is not None:
+                raise ValueError(f"give {axis}_ticks or {axis}_step, not both")
+        return self
 
 
 class TimePanel(PanelBase):
-    """Panels repeated one row per level, with time on x."""
+    """Panels with time on x, repeated per level (or per unit) down rows or across columns, or
+    overlaid in one axes. Scale bars can replace the axes."""
 
-    repeat: Literal["level"] = "level"
+    repeat: Literal["level", "unit"] = "level"
+    arrange: Literal["rows", "columns", "overlay"] = "rows"
     window_ms: WindowMs = (-50.0, 150.0)
+    scale_bars: bool = False
+    time_bar_ms: Step | None = None
+
+    @model_validator(mode="after")
+    def _arrangement(self) -> "TimePanel":
+        if self.repeat == "unit" and not getattr(self, "units", None):
+            raise ValueError("repeat = 'unit' needs units = [...] naming the units to repeat over")
+        if self.repeat == "unit" and self.arrange != "overlay" and (self.levels is None or len(self.levels) != 1):
+            raise ValueError("one axes per unit shows one level: set levels = [L]")
+        return self
 
 
 class RasterPanel(TimePanel):
     """``kind = "raster"``: one tick per spike, one line per trial presented."""
 
     kind: Literal["raster"]
+    units: list[str] | None = Field(default=None, min_length=2)
+
+    @model_validator(mode="after")
+    def _no_overlay(self) -> "RasterPanel":
+        if self.arrange == "overlay":
+            raise ValueError("rasters cannot be overlaid: arrange them in rows or columns")
+        if self.units is not None and self.repeat != "unit":
+            raise ValueError("a raster shows one unit per axes: with units = [...] set repeat = 'unit'")
+        return self
 
 
 class PsthPanel(TimePanel):
@@ -54,6 +92,7 @@ class PsthPanel(TimePanel):
     lock_y: bool = True
     y_max: Annotated[float, Field(gt=0)] | None = None
     y_label: str | None = None
+    rate_bar: Step | None = None
 
     @field_validator("bin_ms")
     @classmethod

@@ -52,6 +52,18 @@ class StimulusStyle(Frozen):
 
 class PaletteStyle(Frozen):
     units: list[Colour] = Field(min_length=1)
+    levels: str
+    stimulus_levels: str
+
+
+class LetterStyle(Frozen):
+    case: Literal["lower", "upper"]
+    weight: Literal["normal", "bold"]
+    size_pt: Points
+
+
+class ScaleBarStyle(Frozen):
+    line_pt: Points
 
 
 class SummaryStyle(Frozen):
@@ -65,6 +77,8 @@ class Style(Frozen):
 
     font: FontStyle
     palette: PaletteStyle
+    letters: LetterStyle
+    scale_bar: ScaleBarStyle
     summary: SummaryStyle
     axes: AxesStyle
     raster: RasterStyle
@@ -94,7 +108,7 @@ class Style(Frozen):
             "axes.spines.bottom": "bottom" in a.spines,
             "axes.spines.right": "right" in a.spines,
             "axes.spines.top": "top" in a.spines,
-            "axes.titlepad": 3.0,
+            "axes.titlepad": 4.5,
             "axes.labelpad": 2.0,
             "xtick.major.pad": 1.5,
             "ytick.major.pad": 1.5,

@@ -7,7 +7,7 @@ from matplotlib.collections import LineCollection
 from figspec import pipeline
 from figspec.draw.context import styled
 
-from helpers import DEMO_SPEC
+from helpers import DEMO_SPEC, draw_now
 
 
 @pytest.fixture(scope="module")
@@ -16,7 +16,7 @@ def drawn():
     tables = pipeline.compute(resolved)
     with styled(resolved.style):
         fig = pipeline.draw(resolved, tables)
-        fig.canvas.draw()
+        draw_now(fig)
     return resolved, tables, fig
 
 

@@ -6,7 +6,7 @@ import pytest
 from figspec import pipeline
 from figspec.draw.context import styled
 
-from helpers import SPECS
+from helpers import SPECS, draw_now
 
 
 @pytest.fixture(scope="module")
@@ -15,7 +15,7 @@ def drawn():
     tables = pipeline.compute(resolved)
     with styled(resolved.style):
         fig = pipeline.draw(resolved, tables)
-        fig.canvas.draw()
+        draw_now(fig)
     axes = {ax.get_title(): ax for ax in fig.axes if ax.get_title()}
     return resolved, tables, axes
 
@@ -51,7 +51,7 @@ def test_fit_curve_is_the_fit_table(drawn):
 
 def test_population_panel_rows_share_limits_and_show_sem(drawn):
     _, _, axes = drawn
-    fig = axes["Response vs level"].figure
+    fig = axes["Response vs level"].get_figure(root=True)
     population = [ax for ax in fig.axes if any(p.get_gid() == "rate_sem" for p in ax.patches)]
     assert len(population) == 3
     assert len({ax.get_ylim() for ax in population}) == 1

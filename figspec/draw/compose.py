@@ -1,0 +1,164 @@
+"""Compose a figure: a grid of panels (each a subfigure), repeats, stimulus marks, labels,
+shared scales, ticks, letters, scale bars and the stimulus key.
+
+The pipeline hands over one :class:`PanelPlan` per panel: its table(s) and its kind's draw
+function. Nothing here computes a number that is not drawn from those tables.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import TYPE_CHECKING, Any, Callable
+
+import numpy as np
+import pandas as pd
+
+from figspec.draw.context import DrawContext
+from figspec.draw.scales import apply_shared, apply_ticks
+from figspec.draw.shading import level_appearance, mark_stimulus, stimulus_key
+from figspec.spec.models import FigureFile
+
+if TYPE_CHECKING:
+    from matplotlib.figure import Figure
+
+MM_PER_INCH = 25.4
+TIME_LABEL = "Time from stimulus onset (ms)"
+
+
+@dataclass(frozen=True)
+class PanelPlan:
+    """What one panel needs to be drawn.
+
+    ``groups`` are the repeat values in display order (levels or units) and ``group_labels``
+    their row or column labels; both are empty for a panel drawn in one axes.
+    """
+
+    panel: Any
+    tables: Any
+    stimulus: pd.DataFrame | None
+    draw: Callable
+    title: str
+    groups: list
+    group_labels: list[str]
+    y_label: str | None = None
+
+
+def compose(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> "Figure":
+    """Build the figure for ``plans`` (call inside :func:`figspec.draw.context.styled`)."""
+    from matplotlib.figure import Figure
+
+    size = (spec.figure.width_mm / MM_PER_INCH, spec.figure.height_mm / MM_PER_INCH)
+    fig = Figure(figsize=size, layout="constrained")
+    fig.get_layout_engine().set(w_pad=1.5 / 72, h_pad=1.5 / 72, wspace=0.03, hspace=0.03)
+    layout = spec.layout
+    rows, cols = (layout.rows, layout.columns) if layout else (1, len(plans))
+    grid = fig.add_gridspec(rows, cols, width_ratios=layout.widths if layout else None,
+                            height_ratios=layout.heights if layout else None)
+    cells = [p.panel.cell if layout else (1, i + 1) for i, p in enumerate(plans)]
+    axes_of: dict[str, list] = {}
+    appearance = _appearance(spec, plans, ctx)
+    labelled_rows: set[tuple] = set()
+    for i in sorted(range(len(plans)), key=lambda k: (cells[k][0], cells[k][1])):
+        plan = plans[i]
+        (r, c), (h, w) = cells[i], plan.panel.span
+        sub = fig.add_subfigure(grid[r - 1:r - 1 + h, c - 1:c - 1 + w])
+        axes_of[plan.panel.name] = _draw_panel(sub, plan, spec, ctx, appearance, labelled_rows, (r, h))
+    fig_axes = {name: axes for name, axes in axes_of.items()}
+    for group in spec.shared:
+        apply_shared([ax for name in group.panels for ax in fig_axes[name]], group)
+    for plan in plans:
+        apply_ticks(fig_axes[plan.panel.name], plan.panel)
+    if layout and layout.letters:
+        _letters(fig, ctx)
+    if spec.figure.title:
+        fig.suptitle(spec.figure.title)
+    if appearance and spec.stimulus.key:
+        ranges = any(p.stimulus is not None and (p.stimulus["stop_max_ms"] > p.stimulus["stop_min_ms"]).any()
+                     for p in plans)
+        stimulus_key(fig, appearance, spec.stimulus.label, spec.levels.label, ranges)
+    return fig
+
+
+def _appearance(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> dict:
+    levels = [float(v) for p in plans if p.stimulus is not None for v in p.stimulus["level"]]
+    return level_appearance(np.asarray(levels), spec.stimulus, ctx.style) if levels else {}
+
+
+def _draw_panel(sub, plan: PanelPlan, spec: FigureFile, ctx: DrawContext, appearance: dict,
+                labelled_rows: set, row_band: tuple) -> list:
+    panel = plan.panel
+    arrange = getattr(panel, "arrange", None) if plan.stimulus is not None else None
+    if arrange in ("rows", "columns"):
+        n = len(plan.groups)
+        grid = sub.subplots(n, 1, squeeze=False)[:, 0] if arrange == "rows" else sub.subplots(1, n, squeeze=False)[0]
+        target = dict(zip(plan.groups, grid))
+        axes = list(grid)
+    else:
+        ax = sub.subplots()
+        target, axes = ax, [ax]
+    if plan.stimulus is not None:
+        _mark(plan, target, spec, ctx, appearance)
+    plan.draw(target, plan.tables, panel, ctx)
+    if arrange == "rows":
+        axes[0].set_title(plan.title)
+        axes[-1].set_xlabel(panel.x_label or TIME_LABEL)
+        for ax in axes[:-1]:
+            ax.tick_params(labelbottom=False)
+        y_label = None if getattr(panel, "scale_bars", False) else plan.y_label
+        key = (row_band, tuple(plan.groups))
+        if key not in labelled_rows:          # only the leftmost repeated panel of a row band
+            labelled_rows.add(key)
+            for ax, text in zip(axes, plan.group_labels):
+                ax.set_ylabel(text, rotation=0, ha="right", va="center", labelpad=4)
+        if y_label:
+            sub.supylabel(y_label, fontsize=ctx.style.font.body_pt)
+    elif arrange == "columns":
+        sub.suptitle(plan.title, fontsize=ctx.style.font.title_pt)
+        for ax, text in zip(axes, plan.group_labels):
+            ax.set_title(text.replace("\n", ", "), fontsize=ctx.style.font.body_pt)
+        sub.supxlabel(panel.x_label or TIME_LABEL, fontsize=ctx.style.font.body_pt)
+        if plan.y_label:
+            axes[0].set_ylabel(plan.y_label)
+        for ax in axes[1:]:
+            ax.tick_params(labelleft=False)
+    else:
+        axes[0].set_title(plan.title)
+        if plan.stimulus is not None:
+            axes[0].set_xlabel(panel.x_label or TIME_LABEL)
+            if plan.y_label:
+                axes[0].set_ylabel(plan.y_label)
+    if getattr(panel, "scale_bars", False):
+        from figspec.draw.scalebars import draw_scale_bars
+
+        draw_scale_bars(axes, plan, ctx)
+    return axes
+
+
+def _mark(plan: PanelPlan, target, spec: FigureFile, ctx: DrawContext, appearance: dict) -> None:
+    """Stimulus marks: per repeat axes by its level, or once in an overlaid panel."""
+    stim, mark = plan.stimulus, spec.stimulus.mark
+    if isinstance(target, dict):
+        repeat = plan.panel.repeat
+        for _, window in stim.iterrows():
+            key = float(window["level"]) if repeat == "level" else str(window["unit"])
+            if key in target:
+                colour, alpha = appearance[float(window["level"])]
+                mark_stimulus(target[key], window, colour, alpha, ctx.style, mark)
+        return
+    top = stim.loc[stim["level"].idxmax()]
+    window = pd.Series({"start_ms": stim["start_ms"].min(), "stop_min_ms": stim["stop_min_ms"].min(),
+                        "stop_max_ms": stim["stop_max_ms"].max()})
+    colour, alpha = appearance[float(top["level"])]
+    mark_stimulus(target, window, colour, alpha, ctx.style, mark)
+
+
+def _letters(fig, ctx: DrawContext) -> None:
+    """Panel letters in reading order (by cell: row, then column), as each subfigure's
+    left-aligned super-title, so the layout engine keeps them clear of everything else."""
+    style = ctx.style.letters
+    for n, sub in enumerate(fig.subfigs):        # subfigures were added in reading order
+        letter = "abcdefghijklmnopqrstuvwxyz"[n]
+        letter = letter.upper() if style.case == "upper" else letter
+        title = sub.get_suptitle()               # a panel arranged in columns keeps its title here
+        sub.suptitle(f"{letter}   {title}" if title else letter, x=0.0, ha="left",
+                     fontsize=style.size_pt, fontweight=style.weight)
