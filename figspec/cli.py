@@ -54,8 +54,15 @@ def _parser() -> argparse.ArgumentParser:
     render.add_argument("-o", "--outdir", default="figures", help="output folder (default: figures)")
     render.add_argument("--format", dest="formats", metavar="LIST",
                         help="comma-separated formats, overriding the specs' (svg,pdf,png)")
+    render.add_argument("--style", metavar="NAME", help="render in this style instead of the specs' own")
     check = sub.add_parser("check", help="validate specs and their data; draw nothing")
     check.add_argument("specs", nargs="+", metavar="SPEC")
+    check.add_argument("--style", metavar="NAME", help="check in this style instead of the specs' own")
+    for sub_parser in (render, check):
+        sub_parser.add_argument("--preflight", nargs="?", const="", metavar="PROFILE",
+                                help="check the rendered figure against a profile (default: the spec's "
+                                     "figure.profile), e.g. nature, jneurosci, cell")
+        sub_parser.add_argument("--strict", action="store_true", help="preflight findings exit 2")
     return parser
 
 
@@ -76,14 +83,24 @@ def run(argv: Sequence[str] | None = None) -> int:
                 print(problem.format(), file=sys.stderr)
         for path in files:
             try:
-                resolved = pipeline.check(path)
+                resolved = pipeline.check(path, args.style)
                 for note in pipeline.notes(resolved):
                     print(f"note: {note}", file=sys.stderr)
+                profile = args.preflight or None
                 if args.command == "render":
-                    written = pipeline.render(path, args.outdir, formats, resolved=resolved)
-                    print(f"{path}: wrote {len(written)} files to {args.outdir}")
+                    result = pipeline.render(path, args.outdir, formats, resolved=resolved, profile=profile)
+                    print(f"{path}: wrote {len(result.files)} files to {args.outdir}")
+                elif args.preflight is not None:
+                    result = pipeline.preflight(resolved, profile)
                 else:
+                    result = None
                     print(f"{path}: ok ({len(resolved.panels)} panels)")
+                if result is not None and result.profile is not None:
+                    for finding in result.findings:
+                        print(f"{path}: {finding.format(result.profile)}", file=sys.stderr)
+                    count = len(result.findings)
+                    print(f"{path}: preflight {result.profile.name}: {count} finding{'' if count == 1 else 's'}")
+                    failed = failed or (args.strict and bool(result.findings))
             except UserError as err:
                 failed = True
                 for problem in err.problems:

@@ -24,7 +24,8 @@ from figspec.registry import PANEL_KINDS
 from figspec.spec.loader import LoadedSpec, load_spec
 from figspec.spec.models import source_name
 from figspec.spec.panels import FIT_PARAMETERS, PanelBase
-from figspec.spec.style import Style, load_style
+from figspec.spec.style import Style
+from figspec.spec.style_files import resolve_style
 
 if TYPE_CHECKING:
     from matplotlib.figure import Figure
@@ -38,6 +39,7 @@ class Resolved:
     recordings: dict[str, Recording]
     panels: tuple[PanelBase, ...]
     style: Style
+    style_sources: tuple = ()
 
     def recording(self, panel: PanelBase) -> Recording:
         return self.recordings[panel.source]
@@ -70,13 +72,19 @@ def load(path: str | Path) -> LoadedSpec:
     return load_spec(path)
 
 
-def resolve(spec: LoadedSpec) -> Resolved:
-    """Step 2: load the style and every data source; check what needs the data."""
-    model = spec.model
+def resolve(spec: LoadedSpec, style: str | None = None) -> Resolved:
+    """Step 2: load the style (``style`` overrides the spec's) and every data source; check
+    what needs the data."""
     try:
-        style = load_style(model.figure.style, spec.folder)
+        name, folder = (style, Path.cwd()) if style else (spec.model.figure.style, spec.folder)
+        resolved_style = resolve_style(name, folder, spec.model.style, spec.path, spec.text)
     except UserError as err:
         raise type(err)([spec.locate(p) for p in err.problems]) from None
+    style = resolved_style.style
+    if spec.model.figure.width_mm is None:     # the style's default width
+        figure = spec.model.figure.model_copy(update={"width_mm": style.figure.width_mm})
+        spec = replace(spec, model=spec.model.model_copy(update={"figure": figure}))
+    model = spec.model
     recordings: dict[str, Recording] = {}
     for name, src in model.sources.items():
         try:
@@ -118,7 +126,8 @@ def resolve(spec: LoadedSpec) -> Resolved:
         panels.append(panel.model_copy(update={"source": src, "unit": unit}))
     if problems:
         raise spec.error(problems, DataError)
-    return Resolved(spec=spec, recordings=recordings, panels=tuple(panels), style=style)
+    return Resolved(spec=spec, recordings=recordings, panels=tuple(panels), style=style,
+                    style_sources=resolved_style.sources)
 
 
 def _unit_problems(unit: str, rec: Recording, src: str, loc: tuple) -> list[Problem]:
@@ -214,8 +223,9 @@ def _plan(resolved: Resolved, tables: Tables, panel: PanelBase):
 def draw(resolved: Resolved, tables: Tables) -> "Figure":
     """Step 4: lay out the panels and draw each from its table (call inside ``styled``)."""
     from figspec.draw.compose import compose
-    from figspec.draw.context import DrawContext
+    from figspec.draw.context import DrawContext, check_fonts
 
+    check_fonts(resolved.style)
     model = resolved.spec.model
     ctx = DrawContext(style=resolved.style, levels=model.levels)
     return compose(model, [_plan(resolved, tables, p) for p in resolved.panels], ctx)
@@ -232,19 +242,70 @@ def save(resolved: Resolved, tables: Tables, fig: "Figure", outdir: str | Path,
                     f"figspec {__version__}", tables.for_export())
 
 
-def check(path: str | Path) -> Resolved:
+def check(path: str | Path, style: str | None = None) -> Resolved:
     """Validate a spec and resolve its data without drawing anything."""
-    return resolve(load(path))
+    return resolve(load(path), style)
+
+
+@dataclass(frozen=True)
+class Rendered:
+    """What a render wrote, and the preflight findings when a profile was checked."""
+
+    files: list[Path]
+    profile: object | None = None
+    findings: tuple = ()
+
+
+def _profile(resolved: Resolved, name: str | None):
+    from figspec.spec.profile import load_profile
+
+    name = name or resolved.spec.model.figure.profile
+    if name is None:
+        return None
+    try:
+        return load_profile(name, resolved.spec.folder)
+    except UserError as err:
+        raise type(err)([resolved.spec.locate(p) for p in err.problems]) from None
 
 
 def render(path: str | Path, outdir: str | Path, formats: Sequence[str] | None = None,
-           resolved: Resolved | None = None) -> list[Path]:
-    """Load, resolve, compute, draw and save one spec; returns the files written. Pass
-    ``resolved`` to skip loading again what :func:`check` already loaded."""
+           resolved: Resolved | None = None, profile: str | None = None) -> Rendered:
+    """Load, resolve, compute, draw and save one spec; preflight it against ``profile`` (or the
+    spec's ``figure.profile``) when there is one. Pass ``resolved`` to skip loading again what
+    :func:`check` already loaded."""
     from figspec.draw.context import styled
 
     resolved = resolved or resolve(load(path))
+    target = _profile(resolved, profile)
     tables = compute(resolved)
     with styled(resolved.style):
         fig = draw(resolved, tables)
-        return save(resolved, tables, fig, outdir, formats)
+        written = save(resolved, tables, fig, outdir, formats)
+        if target is None:
+            return Rendered(written)
+        files = {p.suffix[1:]: p.read_bytes() for p in written if p.suffix in (".svg", ".pdf", ".png")}
+        return Rendered(written, target, tuple(_preflight(fig, files, target)))
+
+
+def preflight(resolved: Resolved, profile: str | None = None) -> Rendered:
+    """Draw and render a spec in memory (every format, PDF always) and check it against a
+    profile, writing nothing."""
+    from figspec.draw.context import styled
+    from figspec.output.files import figure_bytes
+
+    target = _profile(resolved, profile)
+    if target is None:
+        raise DataError(resolved.spec.locate(Problem("no preflight profile: name one after --preflight or "
+                                                     "set figure.profile", ("figure", "profile"))))
+    model = resolved.spec.model
+    with styled(resolved.style):
+        fig = draw(resolved, compute(resolved))
+        files = {fmt: figure_bytes(fig, fmt, model.figure.png_dpi, f"figspec {__version__}")
+                 for fmt in dict.fromkeys(list(model.figure.formats) + ["pdf"])}
+        return Rendered([], target, tuple(_preflight(fig, files, target)))
+
+
+def _preflight(fig, files, profile):
+    from figspec.output.preflight import preflight as run
+
+    return run(fig, files, profile)

@@ -12,7 +12,7 @@ THIRD_PARTY = {  # what each layer may import besides the standard library and e
     "data": {"numpy", "pandas"},
     "compute": {"numpy", "pandas", "scipy"},
     "draw": {"numpy", "pandas", "matplotlib"},
-    "output": {"pandas", "matplotlib"},
+    "output": {"numpy", "pandas", "matplotlib"},   # numpy for colour-vision arithmetic
 }
 
 

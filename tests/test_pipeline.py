@@ -51,7 +51,7 @@ def test_a_failed_fit_still_renders_the_data(tmp_path):
     text = MINIMAL_SPEC.replace("[stimulus]", '[levels]\nunit = "dB SPL"\nscale = "pressure_db"\n\n[stimulus]') + (
         '\n[[panels]]\nname = "lat"\nkind = "latency"\nunit = "u2"\nlevels = [60, 70, 80]\nfit = "pieron"\n')
     with pytest.warns(FigspecWarning, match="pieron fit ill-conditioned"):
-        written = pipeline.render(write_spec(tmp_path, text), tmp_path / "out", ["png"])
+        written = pipeline.render(write_spec(tmp_path, text), tmp_path / "out", ["png"]).files
     assert (tmp_path / "out" / "spec.png") in written
     import pandas as pd
 

@@ -62,6 +62,7 @@ def compose(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> "Figu
         plan = plans[i]
         (r, c), (h, w) = cells[i], plan.panel.span
         sub = fig.add_subfigure(grid[r - 1:r - 1 + h, c - 1:c - 1 + w])
+        sub.set_gid(plan.panel.name)                 # findings and tests name the panel by it
         axes_of[plan.panel.name] = _draw_panel(sub, plan, spec, ctx, appearance, labelled_rows, (r, h))
     fig_axes = {name: axes for name, axes in axes_of.items()}
     for group in spec.shared:

@@ -7,6 +7,7 @@ import contextlib
 from dataclasses import dataclass
 from typing import Iterator
 
+from figspec.errors import FigspecWarning
 from figspec.spec.models import LevelSpec
 from figspec.spec.style import Style
 
@@ -17,6 +18,22 @@ class DrawContext:
 
     style: Style
     levels: LevelSpec
+
+
+def check_fonts(style: Style) -> None:
+    """Warn when the style's font is not installed: matplotlib would quietly fall back to
+    DejaVu Sans, changing text widths and the layout."""
+    import warnings
+
+    from matplotlib import font_manager
+
+    try:
+        font_manager.findfont(font_manager.FontProperties(family=style.font.family), fallback_to_default=False)
+    except ValueError:
+        warnings.warn(f"font {style.font.family!r} is not installed, so text falls back to DejaVu Sans "
+                      "(other widths, other line breaks). Install it, or a metric-compatible free font "
+                      "(for Arial: Liberation Sans, Debian package fonts-liberation2), or use DejaVu Sans.",
+                      FigspecWarning, stacklevel=3)
 
 
 def group_key(repeat: str, value) -> float | str:

@@ -86,8 +86,9 @@ def _overlay(ax: "Axes", table: pd.DataFrame, panel: PsthPanel, ctx: DrawContext
     for value, rows in table.groupby(panel.repeat, sort=False):
         edges = np.r_[rows["bin_start_ms"].to_numpy(), rows["bin_stop_ms"].to_numpy()[-1]]
         label = ctx.levels.label(value) if panel.repeat == "level" else str(value)
+        gid = f"rate:{value}" if panel.repeat == "level" else f"unit_rate:{value}"
         ax.stairs(rows["rate"].to_numpy(), edges, color=colours[value], linewidth=ctx.style.summary.line_pt,
-                  label=label, gid=f"rate:{value}")
+                  label=label, gid=gid)
     ax.set_ylim(*limits)
     ax.set_xlim(*panel.window_ms)
     if panel.repeat == "level":

@@ -8,7 +8,7 @@ keys in different tables (a panel naming a source that does not exist) live in
 
 from __future__ import annotations
 
-from typing import Annotated, Literal, Union
+from typing import Annotated, Any, Literal, Union
 
 from pydantic import Field, model_validator
 
@@ -25,11 +25,12 @@ class FigureSpec(Frozen):
     """``[figure]``: the page the panels are laid out on."""
 
     title: str = ""
-    width_mm: Millimetres = 180.0
+    width_mm: Millimetres | None = None
     height_mm: Millimetres = 170.0
     formats: list[Format] = Field(default_factory=lambda: list(ALL_FORMATS), min_length=1)
     png_dpi: Annotated[int, Field(ge=72, le=1200)] = 300
     style: str = "default"
+    profile: str | None = None
 
 
 class LevelSpec(Frozen):
@@ -154,6 +155,7 @@ class FigureFile(Frozen):
     sources: dict[Name, SourceSpec] = Field(min_length=1)
     panels: list[Panel] = Field(min_length=1)
     shared: list[SharedGroup] = Field(default_factory=list)
+    style: dict[str, Any] | None = None
 
 
 def source_name(spec: FigureFile, panel: PanelBase) -> str | None:

@@ -72,9 +72,15 @@ class SummaryStyle(Frozen):
     error_cap_pt: Annotated[float, Field(ge=0, le=20)]
 
 
+class FigureDefaults(Frozen):
+    width_mm: Annotated[float, Field(gt=0, le=2000)]
+
+
 class Style(Frozen):
     """A resolved house style."""
 
+    extends: str | None = None
+    figure: FigureDefaults
     font: FontStyle
     palette: PaletteStyle
     letters: LetterStyle
@@ -125,23 +131,22 @@ class Style(Frozen):
         }
 
 
-def style_path(name: str, spec_folder: Path | None = None) -> Path:
-    """Where the style ``name`` lives: a path to a .toml file, or a name looked up in
-    ``styles/`` beside the spec, then figspec's own styles."""
+def style_path(name: str, folder: Path | None = None) -> Path:
+    """Where the style ``name`` lives: a path to a .toml file (relative to ``folder``), or a name
+    looked up in ``styles/`` under ``folder`` (a spec's folder), in ``folder`` itself (a style
+    extending a sibling), then figspec's own styles."""
     if name.endswith(".toml"):
-        return (spec_folder or Path.cwd()) / name
-    for folder in ([spec_folder / "styles"] if spec_folder else []) + [SOURCE_STYLES, PACKAGE_STYLES]:
-        candidate = folder / f"{name}.toml"
+        return (folder or Path.cwd()) / name
+    places = ([folder / "styles", folder] if folder else []) + [SOURCE_STYLES, PACKAGE_STYLES]
+    for place in places:
+        candidate = place / f"{name}.toml"
         if candidate.is_file():
             return candidate
     raise SpecError(Problem(f"no style named {name!r} (looked in styles/ beside the spec and in "
                             "figspec's own styles)", ("figure", "style"), repr(name)))
 
 
-def load_style(name: str, spec_folder: Path | None = None) -> Style:
-    """Read and validate a style file (see :func:`style_path` for the lookup)."""
-    from figspec.spec.loader import read_toml, validate
-
-    path = style_path(name, spec_folder)
-    text, data = read_toml(path)
-    return validate(Style, data, path, text)
+def builtin_styles() -> list[str]:
+    """Names of figspec's own styles."""
+    folder = SOURCE_STYLES if SOURCE_STYLES.is_dir() else PACKAGE_STYLES
+    return sorted(p.stem for p in folder.glob("*.toml"))

@@ -11,7 +11,7 @@ from helpers import DEMO_SPEC
 @pytest.fixture(scope="module")
 def rendered(tmp_path_factory):
     out = tmp_path_factory.mktemp("out")
-    return out, pipeline.render(DEMO_SPEC, out)
+    return out, pipeline.render(DEMO_SPEC, out).files
 
 
 def test_all_formats_and_source_data_are_written(rendered):
@@ -37,7 +37,7 @@ def test_pdf_media_box_is_the_declared_size(rendered):
     out, _ = rendered
     pdf = (out / "level_grid.pdf").read_bytes()
     box = [float(v) for v in re.search(rb"/MediaBox\s*\[\s*([\d.\s]+)\]", pdf).group(1).split()]
-    assert (box[2] - box[0]) / 72 * 25.4 == pytest.approx(120.0, abs=0.1)
+    assert (box[2] - box[0]) / 72 * 25.4 == pytest.approx(183.0, abs=0.1)      # the style's width
     assert (box[3] - box[1]) / 72 * 25.4 == pytest.approx(150.0, abs=0.1)
 
 
@@ -45,12 +45,12 @@ def test_svg_text_is_real_text_and_has_the_declared_size(rendered):
     out, _ = rendered
     svg = (out / "level_grid.svg").read_text()
     assert "<text" in svg and "80 dB SPL" in svg
-    assert re.search(r'width="340\.15\d*pt"', svg)  # 120 mm = 340.157 pt
+    assert re.search(r'width="518\.74\d*pt"', svg)  # 183 mm = 518.740 pt
 
 
 def test_same_spec_renders_to_the_same_bytes(rendered, tmp_path):
     out, written = rendered
-    again = pipeline.render(DEMO_SPEC, tmp_path)
+    again = pipeline.render(DEMO_SPEC, tmp_path).files
     for first, second in zip(sorted(written), sorted(again)):
         assert first.read_bytes() == second.read_bytes(), first.name
 

@@ -1,0 +1,121 @@
+"""Preflight: check a rendered figure and its files against a profile (journal limits).
+
+Each finding names the rule, the panel and the element, so it can be fixed where it is.
+"""
+
+from __future__ import annotations
+
+import itertools
+import re
+from dataclasses import dataclass
+from typing import TYPE_CHECKING
+
+import numpy as np
+
+from figspec.output.colour_vision import delta_e, simulate
+from figspec.output.inspect import drawn_lines, drawn_texts, panel_of
+from figspec.spec.profile import Profile
+
+if TYPE_CHECKING:
+    from matplotlib.figure import Figure
+
+MM_PER_INCH = 25.4
+
+
+@dataclass(frozen=True)
+class Finding:
+    rule: str
+    panel: str
+    element: str
+    message: str
+
+    def format(self, profile: Profile) -> str:
+        where = "figure" if self.panel == "figure" else f"panel {self.panel!r}"
+        return f"preflight {profile.name}: {self.rule}: {where}, {self.element}: {self.message}"
+
+
+def preflight(fig: "Figure", files: dict[str, bytes], profile: Profile) -> list[Finding]:
+    """Every finding of ``profile``'s rules on a drawn ``fig`` and its rendered ``files``
+    (format -> bytes)."""
+    findings = _size(fig, profile) + _text(fig, profile) + _lines(fig, profile) + _colours(fig, profile)
+    findings += _fonts(files, profile) + _file_size(files, profile)
+    return findings
+
+
+def _size(fig, profile: Profile) -> list[Finding]:
+    width, height = fig.get_size_inches() * MM_PER_INCH
+    out = []
+    if not any(abs(width - w) <= profile.width_tolerance_mm for w in profile.column_widths_mm):
+        widths = ", ".join(f"{w:g}" for w in profile.column_widths_mm)
+        out.append(Finding("width", "figure", "page", f"{width:.1f} mm is not a column width ({widths} mm, "
+                                                      f"within {profile.width_tolerance_mm:g} mm)"))
+    if height > profile.max_height_mm + 1e-9:
+        out.append(Finding("height", "figure", "page", f"{height:.1f} mm is taller than {profile.max_height_mm:g} mm"))
+    return out
+
+
+def _text(fig, profile: Profile) -> list[Finding]:
+    small: dict[tuple[str, float], list[str]] = {}
+    for text in drawn_texts(fig):
+        size = float(text.get_fontsize())
+        if size < profile.min_text_pt - 1e-9:
+            small.setdefault((panel_of(text), size), []).append(text.get_text().replace("\n", " "))
+    return [Finding("text size", panel, f"text {', '.join(repr(t) for t in texts[:3])}"
+                    + (f" and {len(texts) - 3} more" if len(texts) > 3 else ""),
+                    f"{size:g} pt is below {profile.min_text_pt:g} pt")
+            for (panel, size), texts in small.items()]
+
+
+def _lines(fig, profile: Profile) -> list[Finding]:
+    thin: dict[tuple[str, str], float] = {}
+    for artist, what, width in drawn_lines(fig):
+        if width < profile.min_line_pt - 1e-9:
+            key = (panel_of(artist), what.split(":")[0])
+            thin[key] = min(width, thin.get(key, width))
+    return [Finding("line width", panel, what, f"{width:g} pt is below {profile.min_line_pt:g} pt")
+            for (panel, what), width in thin.items()]
+
+
+def categorical_colours(fig) -> dict[str, dict[str, tuple]]:
+    """Per panel, the colour of each category (unit) drawn with a palette colour."""
+    from matplotlib.colors import to_rgb
+
+    out: dict[str, dict[str, tuple]] = {}
+    for artist in fig.findobj(lambda a: (a.get_gid() or "").startswith(("points:", "unit_rate:"))):
+        name = artist.get_gid().split(":", 1)[1]
+        colour = artist.get_color() if hasattr(artist, "get_color") else artist.get_edgecolor()
+        out.setdefault(panel_of(artist), {})[name] = to_rgb(colour)
+    return out
+
+
+def _colours(fig, profile: Profile) -> list[Finding]:
+    out = []
+    for panel, colours in categorical_colours(fig).items():
+        for (a, ca), (b, cb) in itertools.combinations(sorted(colours.items()), 2):
+            for deficiency in ("deuteranopia", "protanopia"):
+                d = float(delta_e(simulate(np.array(ca), deficiency), simulate(np.array(cb), deficiency)))
+                if d < profile.cvd_min_delta_e:
+                    out.append(Finding("colour vision", panel, f"{a} and {b}",
+                                       f"under simulated {deficiency} their colours differ by dE {d:.1f} "
+                                       f"(< {profile.cvd_min_delta_e:g})"))
+    return out
+
+
+def _fonts(files: dict[str, bytes], profile: Profile) -> list[Finding]:
+    pdf = files.get("pdf")
+    if not profile.truetype_fonts or pdf is None:
+        return []
+    out = []
+    if re.search(rb"/Subtype\s*/Type3", pdf):
+        out.append(Finding("fonts", "figure", "PDF", "has Type 3 fonts (text is not editable): set pdf.fonttype 42"))
+    descriptors = len(re.findall(rb"/Type\s*/FontDescriptor", pdf))
+    embedded = len(re.findall(rb"/FontFile2", pdf))
+    if embedded < descriptors:
+        out.append(Finding("fonts", "figure", "PDF", f"{descriptors - embedded} fonts are not embedded as TrueType"))
+    return out
+
+
+def _file_size(files: dict[str, bytes], profile: Profile) -> list[Finding]:
+    limit = profile.max_file_mb * 1e6
+    return [Finding("file size", "figure", f"{fmt.upper()} file", f"{len(data) / 1e6:.1f} MB is over "
+                    f"{profile.max_file_mb:g} MB") for fmt, data in files.items() if len(data) > limit]

@@ -1,0 +1,51 @@
+"""Preflight profiles: what a journal (or a lab) requires of a figure file, as TOML."""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Annotated
+
+from pydantic import Field
+
+from figspec.errors import Problem, SpecError
+from figspec.spec.style import PACKAGE_STYLES, SOURCE_STYLES
+from figspec.spec.types import Frozen
+
+Positive = Annotated[float, Field(gt=0)]
+
+
+class Profile(Frozen):
+    """Limits a rendered figure is checked against (see ``figspec check --preflight``)."""
+
+    name: str
+    column_widths_mm: list[Positive] = Field(min_length=1)
+    width_tolerance_mm: Positive = 0.5
+    max_height_mm: Positive
+    min_text_pt: Positive
+    min_line_pt: Positive
+    truetype_fonts: bool = True
+    cvd_min_delta_e: Annotated[float, Field(ge=0)] = 10.0
+    max_file_mb: Positive = 10.0
+
+
+def profile_path(name: str, folder: Path | None = None) -> Path:
+    """A profile by path (``.toml``) or by name in ``styles/profiles/`` beside the spec, then
+    figspec's own."""
+    if name.endswith(".toml"):
+        return (folder or Path.cwd()) / name
+    places = ([folder / "styles" / "profiles"] if folder else []) + [SOURCE_STYLES / "profiles",
+                                                                     PACKAGE_STYLES / "profiles"]
+    for place in places:
+        if (place / f"{name}.toml").is_file():
+            return place / f"{name}.toml"
+    known = sorted({p.stem for place in places if place.is_dir() for p in place.glob("*.toml")})
+    raise SpecError(Problem(f"no preflight profile named {name!r} (known: {', '.join(known)})",
+                            ("figure", "profile"), repr(name)))
+
+
+def load_profile(name: str, folder: Path | None = None) -> Profile:
+    from figspec.spec.loader import read_toml, validate
+
+    path = profile_path(name, folder)
+    text, data = read_toml(path)
+    return validate(Profile, data, path, text)

@@ -1,0 +1,83 @@
+"""Each preflight rule fails on a figure made to break it and passes on the demo figures."""
+
+import pytest
+
+from figspec import pipeline
+from figspec.output.preflight import preflight
+from figspec.spec.profile import load_profile
+
+from helpers import MINIMAL_SPEC, SPECS, write_spec
+
+DEMOS = sorted(SPECS.glob("*.toml"))
+
+
+@pytest.mark.parametrize("spec", DEMOS, ids=[p.stem for p in DEMOS])
+def test_demo_figures_pass_the_nature_profile(spec):
+    result = pipeline.preflight(pipeline.check(spec), "nature")
+    assert [f.format(result.profile) for f in result.findings] == []
+
+
+def findings(tmp_path, text, profile="nature"):
+    result = pipeline.preflight(pipeline.check(write_spec(tmp_path, text)), profile)
+    return {f.rule: f for f in result.findings}
+
+
+GOOD = MINIMAL_SPEC.replace("width_mm = 100", "width_mm = 89")
+
+
+def test_a_good_minimal_figure_passes(tmp_path):
+    assert findings(tmp_path, GOOD) == {}
+
+
+def test_width_not_a_column(tmp_path):
+    assert "is not a column width" in findings(tmp_path, MINIMAL_SPEC)["width"].message
+
+
+def test_too_tall(tmp_path):
+    assert "taller than 170" in findings(tmp_path, GOOD.replace("height_mm = 120", "height_mm = 200"))["height"].message
+
+
+def test_small_text_names_panel_and_text(tmp_path):
+    found = findings(tmp_path, GOOD + "\n[style.font]\ntick_pt = 4\n")["text size"]
+    assert found.panel in {"spikes", "rate"} and "4 pt is below 5 pt" in found.message
+
+
+def test_thin_raster_ticks(tmp_path):
+    found = findings(tmp_path, GOOD + "\n[style.raster]\ntick_width_pt = 0.1\n")["line width"]
+    assert (found.panel, found.element) == ("spikes", "raster")
+
+
+def test_colours_confused_under_deuteranopia(tmp_path):
+    text = GOOD.replace("width_mm = 89", "width_mm = 183").replace("[stimulus]", '[levels]\nunit = "dB SPL"\nscale = "pressure_db"\n\n[stimulus]') + (
+        '\n[[panels]]\nname = "curve"\nkind = "level_response"\nunits = ["u1", "u2"]\n'
+        '\n[style.palette]\nunits = ["#d62728", "#2ca02c"]\n')
+    found = findings(tmp_path, text)["colour vision"]
+    assert found.panel == "curve" and found.element == "u1 and u2" and "deuteranopia" in found.message
+
+
+def test_type3_and_unembedded_fonts(tmp_path):
+    profile = load_profile("nature")
+    fake = {"pdf": b"%PDF-1.4 /Type /FontDescriptor /Subtype /Type3"}
+    from matplotlib.figure import Figure
+
+    rules = {f.rule + ": " + f.message for f in preflight(Figure(figsize=(89 / 25.4, 2)), fake, profile)}
+    assert any("Type 3" in r for r in rules) and any("not embedded" in r for r in rules)
+
+
+def test_file_size_limit(tmp_path):
+    (tmp_path / "tiny.toml").write_text(
+        (SPECS.parent / "styles" / "profiles" / "nature.toml").read_text().replace("max_file_mb = 10", "max_file_mb = 0.001"))
+    found = findings(tmp_path, GOOD, str(tmp_path / "tiny.toml"))["file size"]
+    assert "MB is over 0.001 MB" in found.message
+
+
+def test_strict_preflight_exits_2(tmp_path):
+    import subprocess
+    import sys
+
+    path = write_spec(tmp_path, MINIMAL_SPEC)
+    run = lambda *a: subprocess.run([sys.executable, "-m", "figspec", "check", str(path), *a],  # noqa: E731
+                                    capture_output=True, text=True)
+    assert run("--preflight", "nature").returncode == 0
+    strict = run("--preflight", "nature", "--strict")
+    assert strict.returncode == 2 and "preflight Nature: width: figure, page:" in strict.stderr
