@@ -16,7 +16,7 @@ from figspec import __version__
 from figspec.errors import FigspecWarning, Problem, UserError
 from figspec.spec.models import ALL_FORMATS
 
-EXIT_OK, EXIT_INTERNAL, EXIT_USER = 0, 1, 2
+EXIT_OK, EXIT_INTERNAL, EXIT_USER, EXIT_DIFFERS = 0, 1, 2, 3
 
 
 def _spec_files(items: Sequence[str]) -> list[Path]:
@@ -58,6 +58,20 @@ def _parser() -> argparse.ArgumentParser:
     check = sub.add_parser("check", help="validate specs and their data; draw nothing")
     check.add_argument("specs", nargs="+", metavar="SPEC")
     check.add_argument("--style", metavar="NAME", help="check in this style instead of the specs' own")
+    snap = sub.add_parser("snapshot", help="store baseline images (and hashes) of specs")
+    snap.add_argument("specs", nargs="+", metavar="SPEC_OR_FOLDER")
+    snap.add_argument("--dir", default="figure_baselines", help="baseline folder (default: figure_baselines)")
+    comp = sub.add_parser("compare", help="re-render specs and compare with their baselines (exit 3 if any differs)")
+    comp.add_argument("specs", nargs="+", metavar="SPEC_OR_FOLDER")
+    comp.add_argument("--dir", default="figure_baselines", help="baseline folder (default: figure_baselines)")
+    comp.add_argument("--tolerance", type=float, default=1.0, help="largest RMS difference (0-255) that passes")
+    comp.add_argument("-o", "--outdir", default="figure_comparison", help="actual, expected and difference images")
+    dif = sub.add_parser("diff", help="show what changed between two versions of a spec")
+    dif.add_argument("spec", metavar="SPEC", help="the new version")
+    which = dif.add_mutually_exclusive_group(required=True)
+    which.add_argument("--old", metavar="SPEC", help="the old version, as a file")
+    which.add_argument("--rev", metavar="REVISION", help="the old version: the same file at this git revision")
+    dif.add_argument("-o", "--outdir", default="figure_diff", help="where the images and summary go")
     for sub_parser in (render, check):
         sub_parser.add_argument("--preflight", nargs="?", const="", metavar="PROFILE",
                                 help="check the rendered figure against a profile (default: the spec's "
@@ -71,6 +85,8 @@ def run(argv: Sequence[str] | None = None) -> int:
     args = _parser().parse_args(argv)
     from figspec import pipeline
 
+    if args.command in ("snapshot", "compare", "diff"):
+        return _review(args)
     failed = False
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", FigspecWarning)
@@ -111,6 +127,30 @@ def run(argv: Sequence[str] | None = None) -> int:
                         print(f"warning: {warning.message}", file=sys.stderr)
                 caught.clear()
     return EXIT_USER if failed else EXIT_OK
+
+
+def _review(args: argparse.Namespace) -> int:
+    from figspec import review
+
+    try:
+        if args.command == "snapshot":
+            written = review.snapshot(_spec_files(args.specs), Path(args.dir))
+            print(f"stored {len(written) - 1} baselines in {args.dir}")
+            return EXIT_OK
+        if args.command == "compare":
+            results = review.compare(_spec_files(args.specs), Path(args.dir), args.tolerance, Path(args.outdir))
+            for result in results:
+                print(f"{result.image.name}: {'same' if result.passed else 'DIFFERS'}: {result.image.message}")
+            print(f"{sum(not r.passed for r in results)} of {len(results)} figures differ; see {args.outdir}")
+            return EXIT_OK if all(r.passed for r in results) else EXIT_DIFFERS
+        lines = review.diff(Path(args.spec), Path(args.old) if args.old else None, args.rev, Path(args.outdir))
+        print("\n".join(lines))
+        print(f"images in {Path(args.outdir) / (Path(args.spec).stem + '_diff')}")
+        return EXIT_OK
+    except UserError as err:
+        for problem in err.problems:
+            print(problem.format(), file=sys.stderr)
+        return EXIT_USER
 
 
 def main(argv: Sequence[str] | None = None) -> None:

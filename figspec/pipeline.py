@@ -231,15 +231,84 @@ def draw(resolved: Resolved, tables: Tables) -> "Figure":
     return compose(model, [_plan(resolved, tables, p) for p in resolved.panels], ctx)
 
 
-def save(resolved: Resolved, tables: Tables, fig: "Figure", outdir: str | Path,
-         formats: Sequence[str] | None = None) -> list[Path]:
-    """Step 5: write the figure in every format and the source-data tables."""
-    from figspec.output.files import save_all
+def inputs(resolved: Resolved) -> list[dict]:
+    """Every file the figure was made from, with its role and sha256."""
+    spec = resolved.spec
+    rows = [{"role": "spec", "path": _shown_path(spec.path.resolve()), "sha256": _file_sha(spec.path)}]
+    for name, src in spec.model.sources.items():
+        for role, rel in (("spikes", src.spikes), ("trials", src.trials)):
+            if rel is not None:
+                path = (spec.folder / rel).resolve()
+                rows.append({"role": f"data:{name}:{role}", "path": _shown_path(path), "sha256": _file_sha(path)})
+    for source in resolved.style_sources:
+        if source.prefix == ():
+            rows.append({"role": "style", "path": _shown_path(source.path), "sha256": _file_sha(source.path)})
+    return rows
+
+
+def _shown_path(path: Path) -> str:
+    """A path as the manifest shows it: figspec's own files by name (not where figspec is
+    installed), others relative to the working folder when below it."""
+    from figspec.spec.style import PACKAGE_STYLES, SOURCE_STYLES
+
+    for root in (SOURCE_STYLES, PACKAGE_STYLES):
+        if path.is_relative_to(root):
+            return "figspec:styles/" + path.relative_to(root).as_posix()
+    cwd = Path.cwd().resolve()
+    return path.relative_to(cwd).as_posix() if path.is_relative_to(cwd) else str(path)
+
+
+def _file_sha(path: Path) -> str:
+    import hashlib
+
+    digest = hashlib.sha256()
+    with open(path, "rb") as handle:
+        for block in iter(lambda: handle.read(1 << 20), b""):
+            digest.update(block)
+    return digest.hexdigest()
+
+
+def parameters(resolved: Resolved) -> dict:
+    """Every parameter the figure was made with, defaults included, and the versions that
+    shape the output bytes."""
+    import matplotlib
+    import numpy
 
     model = resolved.spec.model
-    stem = Path(outdir) / resolved.spec.path.stem
-    return save_all(fig, stem, formats or model.figure.formats, model.figure.png_dpi,
-                    f"figspec {__version__}", tables.for_export())
+    return {
+        "spec": model.model_dump(mode="json"),
+        "panels_resolved": [p.model_dump(mode="json") for p in resolved.panels],
+        "style": resolved.style.model_dump(mode="json"),
+        "versions": {"figspec": __version__, "matplotlib": matplotlib.__version__,
+                     "numpy": numpy.__version__, "pandas": pd.__version__},
+    }
+
+
+def save(resolved: Resolved, tables: Tables, fig: "Figure", outdir: str | Path,
+         formats: Sequence[str] | None = None) -> list[Path]:
+    """Step 5: write the figure in every format, the source-data tables, the statistics
+    summary, the legend snippet and the manifest, as one set (see ``output.files.write_all``)."""
+    from figspec.output.files import figure_bytes, table_bytes, write_all
+    from figspec.output.report import legend_snippet, manifest, statistics_summary
+
+    model = resolved.spec.model
+    outdir = Path(outdir)
+    stem = outdir / resolved.spec.path.stem
+    data_dir = outdir / f"{stem.name}_data"
+    sources = inputs(resolved)
+    provenance = f"figspec {__version__}; " + "; ".join(f"{i['role']} sha256:{i['sha256']}" for i in sources)
+    payload: dict[Path, bytes] = {}
+    for fmt in formats or model.figure.formats:
+        payload[stem.with_suffix(f".{fmt}")] = figure_bytes(fig, fmt, model.figure.png_dpi,
+                                                            f"figspec {__version__}", provenance)
+    for name, table in tables.for_export().items():
+        payload[data_dir / f"{name}.csv"] = table_bytes(table)
+    payload[data_dir / "statistics.csv"] = table_bytes(statistics_summary(list(resolved.panels), tables.panels))
+    payload[data_dir / "legend.md"] = legend_snippet(model.figure.title, list(resolved.panels), tables.panels,
+                                                     model.levels.unit).encode()
+    outputs = {p.relative_to(outdir).as_posix(): data for p, data in payload.items()}
+    payload[data_dir / "manifest.json"] = manifest(sources, outputs, parameters(resolved))
+    return write_all(payload)
 
 
 def check(path: str | Path, style: str | None = None) -> Resolved:
@@ -309,3 +378,16 @@ def _preflight(fig, files, profile):
     from figspec.output.preflight import preflight as run
 
     return run(fig, files, profile)
+
+
+def render_in_memory(resolved: Resolved, formats: Sequence[str] = ("png",)) -> tuple[dict[str, bytes], Tables]:
+    """Draw a resolved spec and return its files (format -> bytes) and tables, writing nothing."""
+    from figspec.draw.context import styled
+    from figspec.output.files import figure_bytes
+
+    model = resolved.spec.model
+    tables = compute(resolved)
+    with styled(resolved.style):
+        fig = draw(resolved, tables)
+        files = {fmt: figure_bytes(fig, fmt, model.figure.png_dpi, f"figspec {__version__}") for fmt in formats}
+    return files, tables

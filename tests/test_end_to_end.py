@@ -1,19 +1,17 @@
-"""End-to-end image baselines of the demo level grid and the composite figure.
+"""End-to-end image baselines of the demo level grid and the composite figure, through the
+helper labs use for their own figures (figspec.testing).
 
 Refresh after an intended change: ``FIGSPEC_UPDATE_BASELINES=1 python -m pytest tests/test_end_to_end.py``
-then look at the new PNG before committing it.
+then look at the new PNGs before committing them.
 """
 
-import os
-import shutil
 from pathlib import Path
 
 import pytest
-from matplotlib.testing.compare import compare_images
 
-from figspec import pipeline
+from figspec.testing import assert_figure_matches
 
-from helpers import DEMO_SPEC, ROOT
+from helpers import ROOT, SPECS
 
 BASELINES = Path(__file__).parent / "baseline_images" / "test_end_to_end"
 RESULTS = ROOT / "result_images" / "test_end_to_end"
@@ -24,16 +22,6 @@ RESULTS = ROOT / "result_images" / "test_end_to_end"
 TOLERANCE = 1.0
 
 
-@pytest.mark.parametrize("spec", [DEMO_SPEC, DEMO_SPEC.parent / "unit_composite.toml"], ids=["level_grid", "composite"])
-def test_demo_figure_matches_baseline(spec):
-    RESULTS.mkdir(parents=True, exist_ok=True)
-    pipeline.render(spec, RESULTS, ["png"])
-    actual = RESULTS / f"{spec.stem}.png"
-    expected = BASELINES / f"{spec.stem}.png"
-    if os.environ.get("FIGSPEC_UPDATE_BASELINES"):
-        BASELINES.mkdir(parents=True, exist_ok=True)
-        shutil.copyfile(actual, expected)
-        pytest.skip("baseline refreshed")
-    shutil.copyfile(expected, RESULTS / f"{spec.stem}-expected.png")
-    failure = compare_images(str(expected), str(actual), tol=TOLERANCE)  # writes *-failed-diff.png
-    assert failure is None, failure
+@pytest.mark.parametrize("name", ["level_grid", "unit_composite"])
+def test_demo_figure_matches_baseline(name):
+    assert_figure_matches(SPECS / f"{name}.toml", BASELINES, TOLERANCE, RESULTS)

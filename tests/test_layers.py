@@ -12,7 +12,8 @@ THIRD_PARTY = {  # what each layer may import besides the standard library and e
     "data": {"numpy", "pandas"},
     "compute": {"numpy", "pandas", "scipy"},
     "draw": {"numpy", "pandas", "matplotlib"},
-    "output": {"numpy", "pandas", "matplotlib"},   # numpy for colour-vision arithmetic
+    "output": {"numpy", "pandas", "matplotlib", "PIL"},   # numpy: colour arithmetic; PIL (a matplotlib
+                                                          # dependency): side-by-side review images
 }
 
 

@@ -18,7 +18,8 @@ def test_all_formats_and_source_data_are_written(rendered):
     out, written = rendered
     names = {p.relative_to(out).as_posix() for p in written}
     assert names == {"level_grid.svg", "level_grid.pdf", "level_grid.png", "level_grid_data/spikes.csv",
-                     "level_grid_data/rate.csv", "level_grid_data/stimulus.csv"}
+                     "level_grid_data/rate.csv", "level_grid_data/stimulus.csv", "level_grid_data/statistics.csv",
+                     "level_grid_data/legend.md", "level_grid_data/manifest.json"}
 
 
 def test_pdf_text_is_embedded_truetype(rendered):

@@ -1,0 +1,157 @@
+"""Figures you can trust in review: byte-stable outputs, provenance, manifest, source data,
+atomic writes, baseline comparison and spec diffs."""
+
+import hashlib
+import json
+import shutil
+import subprocess
+import sys
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+from matplotlib.collections import LineCollection
+
+from figspec import pipeline
+from figspec.draw.context import styled
+
+from helpers import DEMO_SPEC, ROOT, SPECS, draw_now
+
+DEMOS = sorted(SPECS.glob("*.toml"))
+
+
+def sha(path: Path) -> str:
+    return hashlib.sha256(path.read_bytes()).hexdigest()
+
+
+def figspec(*args, cwd=None):
+    return subprocess.run([sys.executable, "-m", "figspec", *map(str, args)], capture_output=True, text=True, cwd=cwd)
+
+
+@pytest.fixture(scope="module")
+def two_renders(tmp_path_factory):
+    """The demo specs rendered twice, each time in its own process."""
+    out = tmp_path_factory.mktemp("renders")
+    for name in ("a", "b"):
+        result = figspec("render", SPECS, "-o", out / name, cwd=ROOT)
+        assert result.returncode == 0, result.stderr
+    return out / "a", out / "b"
+
+
+def test_two_processes_write_identical_bytes(two_renders):
+    a, b = two_renders
+    files = sorted(p.relative_to(a) for p in a.rglob("*") if p.is_file())
+    assert {p.suffix for p in files} >= {".svg", ".pdf", ".png", ".csv", ".json", ".md"}
+    assert files == sorted(p.relative_to(b) for p in b.rglob("*") if p.is_file())
+    assert [f for f in files if sha(a / f) != sha(b / f)] == []
+
+
+def test_manifest_lists_inputs_outputs_and_resolved_defaults(two_renders):
+    a, _ = two_renders
+    manifest = json.loads((a / "level_grid_data" / "manifest.json").read_text())
+    inputs = {i["role"]: i for i in manifest["inputs"]}
+    assert inputs["spec"]["sha256"] == sha(DEMO_SPEC)
+    assert inputs["data:midbrain:spikes"]["sha256"] == sha(SPECS / "data" / "spikes.csv")
+    assert inputs["data:midbrain:trials"]["sha256"] == sha(SPECS / "data" / "trials.csv")
+    assert inputs["style"]["path"] == "figspec:styles/default.toml"
+    assert inputs["style"]["sha256"] == sha(ROOT / "styles" / "default.toml")
+    outputs = {o["path"]: o["sha256"] for o in manifest["outputs"]}
+    assert set(outputs) >= {"level_grid.svg", "level_grid.pdf", "level_grid.png", "level_grid_data/rate.csv",
+                            "level_grid_data/statistics.csv", "level_grid_data/legend.md"}
+    assert all(outputs[p] == sha(a / p) for p in outputs)
+    params = manifest["parameters"]
+    assert params["spec"]["figure"]["width_mm"] == 183                 # from the style
+    assert params["spec"]["figure"]["png_dpi"] == 300                  # a default nobody wrote
+    assert params["panels_resolved"][1]["lock_y"] is True and params["panels_resolved"][0]["source"] == "midbrain"
+    assert params["style"]["font"]["family"] == "DejaVu Sans"
+
+
+def test_every_output_carries_provenance(two_renders):
+    a, _ = two_renders
+    spec_hash = sha(DEMO_SPEC).encode()
+    for suffix in (".svg", ".pdf", ".png"):
+        assert spec_hash in (a / f"level_grid{suffix}").read_bytes(), suffix
+
+
+def test_statistics_summary_and_legend(two_renders):
+    a, _ = two_renders
+    stats = pd.read_csv(a / "level_summary_data" / "statistics.csv")
+    assert {"trials", "test", "fit", "latency"} <= set(stats["section"])
+    p = stats[(stats["section"] == "test") & (stats["quantity"] == "p_holm")]
+    assert len(p) == 27 and p["value"].between(0, 1).all()
+    legend = (a / "level_summary_data" / "legend.md").read_text()
+    assert "Holm-corrected" in legend and "mean +/- SEM" in legend and "n = 30 trials per level" in legend
+
+
+def test_source_data_equals_what_is_drawn(two_renders):
+    a, _ = two_renders
+    spikes = pd.read_csv(a / "level_grid_data" / "spikes.csv")
+    rate = pd.read_csv(a / "level_grid_data" / "rate.csv")
+    resolved = pipeline.check(DEMO_SPEC)
+    with styled(resolved.style):
+        fig = draw_now(pipeline.draw(resolved, pipeline.compute(resolved)))
+    raster_axes, rate_axes = fig.subfigs[0].axes, fig.subfigs[1].axes
+    for ax_r, ax_h, level in zip(raster_axes, rate_axes, range(80, -1, -10)):
+        [lines] = [c for c in ax_r.collections if isinstance(c, LineCollection)]
+        drawn_x = np.sort([s[0, 0] for s in lines.get_segments()])
+        np.testing.assert_allclose(drawn_x, np.sort(spikes[spikes["level"] == level]["time_ms"].dropna()), rtol=1e-9)
+        [stairs] = [p for p in ax_h.patches if p.get_gid() == "rate"]
+        np.testing.assert_allclose(stairs.get_data().values, rate[rate["level"] == level]["rate"], rtol=1e-9)
+
+
+def test_failed_render_leaves_earlier_outputs_untouched(tmp_path, monkeypatch):
+    import figspec.output.files as files
+
+    out = tmp_path / "out"
+    pipeline.render(DEMO_SPEC, out)
+    before = {p: p.read_bytes() for p in out.rglob("*") if p.is_file()}
+    real = files.os.fdopen
+    calls = {"n": 0}
+
+    def failing(fd, *args, **kwargs):
+        calls["n"] += 1
+        if calls["n"] == 3:                              # two files already staged
+            files.os.close(fd)
+            raise OSError("disk full")
+        return real(fd, *args, **kwargs)
+
+    monkeypatch.setattr(files.os, "fdopen", failing)
+    changed = tmp_path / "changed.toml"
+    changed.write_text(DEMO_SPEC.read_text().replace("bin_ms = 5", "bin_ms = 10")
+                       .replace("data/", str(SPECS / "data") + "/"))
+    shutil.copy(changed, tmp_path / "level_grid.toml")
+    with pytest.raises(OSError, match="disk full"):
+        pipeline.render(tmp_path / "level_grid.toml", out)
+    after = {p: p.read_bytes() for p in out.rglob("*") if p.is_file()}
+    assert after == before                                # nothing replaced, no temporary file left
+
+
+def test_compare_passes_unchanged_and_catches_a_1_ms_bin_change(tmp_path):
+    shutil.copytree(SPECS, tmp_path / "specs")
+    spec = tmp_path / "specs" / "level_grid.toml"
+    assert figspec("snapshot", spec, "--dir", tmp_path / "base").returncode == 0
+    same = figspec("compare", spec, "--dir", tmp_path / "base", "-o", tmp_path / "cmp")
+    assert same.returncode == 0 and "level_grid: same" in same.stdout
+    spec.write_text(spec.read_text().replace("bin_ms = 5", "bin_ms = 4"))
+    differs = figspec("compare", spec, "--dir", tmp_path / "base", "-o", tmp_path / "cmp")
+    assert differs.returncode == 3 and "level_grid: DIFFERS: RMS" in differs.stdout
+    assert {"level_grid.png", "level_grid-expected.png", "level_grid-failed-diff.png", "summary.txt"} <= \
+        {p.name for p in (tmp_path / "cmp").iterdir()}
+
+
+def test_diff_against_a_git_revision_reports_the_key_change(tmp_path):
+    shutil.copytree(SPECS, tmp_path / "specs")
+    git = lambda *a: subprocess.run(["git", *a], cwd=tmp_path, capture_output=True, text=True, check=True)  # noqa: E731
+    git("init", "-q")
+    git("-c", "user.name=t", "-c", "user.email=t@example.org", "add", ".")
+    git("-c", "user.name=t", "-c", "user.email=t@example.org", "commit", "-qm", "figures")
+    spec = tmp_path / "specs" / "level_grid.toml"
+    spec.write_text(spec.read_text().replace("bin_ms = 5", "bin_ms = 4"))
+    result = figspec("diff", spec, "--rev", "HEAD", "-o", tmp_path / "d")
+    assert result.returncode == 0, result.stderr
+    assert "changed panels[1].bin_ms: 5 -> 4" in result.stdout
+    assert "table rate: 360 -> 450 rows" in result.stdout
+    folder = tmp_path / "d" / "level_grid_diff"
+    assert {"old.png", "new.png", "side_by_side.png", "difference.png", "summary.txt"} <= {p.name for p in folder.iterdir()}
+    assert not list((tmp_path / "specs").glob(".*.toml"))        # the revision's copy was removed
