@@ -5,10 +5,10 @@ import itertools
 import re
 
 import pytest
-from matplotlib.text import Text
 
 from figspec import pipeline
 from figspec.draw.context import styled
+from figspec.output.inspect import drawn_texts as visible_texts
 
 from helpers import SPECS, draw_now
 
@@ -17,29 +17,10 @@ SLACK_PX = 0.5
 
 
 def drawn_texts(fig):
-    """Every text that is drawn: tick labels only for ticks in view, nothing empty or hidden."""
+    """(text, extent) of every text drawn (figspec.output.inspect decides what is drawn)."""
     renderer = fig.canvas.get_renderer()
-    tick_labels = set()
-    in_view = []
-    for ax in fig.axes:
-        for axis in (ax.xaxis, ax.yaxis):
-            for tick in axis.get_major_ticks() + axis.get_minor_ticks():
-                tick_labels |= {id(tick.label1), id(tick.label2)}
-            if ax.axison:
-                low, high = sorted(axis.get_view_interval())
-                span = (high - low) * 1e-9
-                in_view += [t for t, loc in zip(axis.get_majorticklabels(), axis.get_majorticklocs())
-                            if low - span <= loc <= high + span and t.get_visible() and t.get_text()]
-    others = [t for t in fig.findobj(Text) if id(t) not in tick_labels]
-    texts = [t for t in others + in_view if t.get_visible() and t.get_text().strip() and not _transparent(t)]
-    return [(t, t.get_window_extent(renderer)) for t in texts]
+    return [(t, t.get_window_extent(renderer)) for t in visible_texts(fig)]
 
-
-def _transparent(text):
-    """Text kept only to reserve layout space (fully transparent) is not seen."""
-    from matplotlib.colors import to_rgba
-
-    return to_rgba(text.get_color())[3] == 0 or text.get_alpha() == 0
 
 def overlap(a, b):
     return (min(a.x1, b.x1) - max(a.x0, b.x0) > SLACK_PX) and (min(a.y1, b.y1) - max(a.y0, b.y0) > SLACK_PX)

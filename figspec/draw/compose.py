@@ -161,5 +161,6 @@ def _letters(fig, ctx: DrawContext) -> None:
         letter = "abcdefghijklmnopqrstuvwxyz"[n]
         letter = letter.upper() if style.case == "upper" else letter
         title = sub.get_suptitle()               # a panel arranged in columns keeps its title here
-        sub.suptitle(f"{letter}   {title}" if title else letter, x=0.0, ha="left",
+        x, ha = (0.0, "left") if style.position == "left" else (0.5, "center")
+        sub.suptitle(f"{letter}   {title}" if title else letter, x=x, ha=ha,
                      fontsize=style.size_pt, fontweight=style.weight)

@@ -11,7 +11,7 @@ from figspec.spec.panels import RasterPanel
 from figspec.draw.context import DrawContext, group_key
 
 if TYPE_CHECKING:
-    from matplotlib.axes import Axes
+    pass
 
 
 def draw_raster(axes: dict, table: pd.DataFrame, panel: RasterPanel, ctx: DrawContext) -> None:

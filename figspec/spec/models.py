@@ -8,7 +8,7 @@ keys in different tables (a panel naming a source that does not exist) live in
 
 from __future__ import annotations
 
-from typing import Annotated, Any, Literal, Union
+from typing import Annotated, Any, Literal
 
 from pydantic import Field, model_validator
 
@@ -192,9 +192,6 @@ def cross_check(spec: FigureFile) -> list[Problem]:
             problems.append(Problem("stimulus.per_trial needs a trial table with onset and offset columns "
                                     f"in source {source_name(spec, panel)!r}", ("stimulus", "per_trial")))
     problems += grid_problems(spec.layout, spec.panels, spec.shared)
-    for i, panel in enumerate(spec.panels):
-        if panel.kind == "raster" and getattr(panel, "rate_bar", None):
-            problems.append(Problem("rate_bar is for psth panels", ("panels", i, "rate_bar")))
     if spec.stimulus.opacity_scale == "log" and spec.levels.unit.lower().startswith("db"):
         problems.append(Problem("levels in dB are already logarithmic: use opacity_scale = 'linear'",
                                 ("stimulus", "opacity_scale"), "'log'"))

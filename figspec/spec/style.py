@@ -60,6 +60,7 @@ class LetterStyle(Frozen):
     case: Literal["lower", "upper"]
     weight: Literal["normal", "bold"]
     size_pt: Points
+    position: Literal["left", "center"]
 
 
 class ScaleBarStyle(Frozen):

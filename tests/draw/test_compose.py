@@ -157,3 +157,12 @@ def test_columns_and_units(tmp_path):
     assert [ax.get_title() for ax in rate] == ["0, n = 30", "40, n = 30", "80, n = 30"]
     assert len({round(ax.get_window_extent().y0, 3) for ax in rate}) == 1
     assert len({ax.get_ylim() for ax in rate}) == 1                 # rate repeats locked by default
+
+
+def test_letter_case_and_position_come_from_the_style(tmp_path):
+    text = (SPECS / "unit_composite.toml").read_text().replace("data/", str(SPECS / "data") + "/")
+    text += '\n[style.letters]\ncase = "upper"\nposition = "center"\n'
+    fig, _ = render(write_spec(tmp_path, text))
+    sub = fig.subfigs[0]
+    assert sub.get_suptitle() == "A"
+    assert sub._suptitle.get_horizontalalignment() == "center"
