@@ -64,11 +64,10 @@ def compose(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> "Figu
         sub = fig.add_subfigure(grid[r - 1:r - 1 + h, c - 1:c - 1 + w])
         sub.set_gid(plan.panel.name)                 # findings and tests name the panel by it
         axes_of[plan.panel.name] = _draw_panel(sub, plan, spec, ctx, appearance, labelled_rows, (r, h))
-    fig_axes = {name: axes for name, axes in axes_of.items()}
     for group in spec.shared:
-        apply_shared([ax for name in group.panels for ax in fig_axes[name]], group)
+        apply_shared([ax for name in group.panels for ax in axes_of[name]], group)
     for plan in plans:
-        apply_ticks(fig_axes[plan.panel.name], plan.panel)
+        apply_ticks(axes_of[plan.panel.name], plan.panel)
     if layout and layout.letters:
         _letters(fig, ctx)
     if spec.figure.title:
