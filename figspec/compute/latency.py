@@ -12,7 +12,7 @@ from scipy.stats import poisson
 
 from figspec.compute.selection import select
 from figspec.compute.stats import bootstrap_ci
-from figspec.compute.trial_counts import counts_in, first_spikes
+from figspec.compute.trial_counts import counts_in, first_spikes, level_bin_counts
 from figspec.data.recording import Recording
 from figspec.spec.panels import LatencyPanel
 
@@ -43,17 +43,6 @@ def first_spike_latency(rec: Recording, unit: str, panel: LatencyPanel) -> pd.Da
     return pd.DataFrame(rows, columns=list(COLUMNS))
 
 
-def _level_rates(sel, level_values, edges):
-    """Rates (spikes/s) per level and bin of width edges[1]-edges[0], over trials presented."""
-    levels, inverse = np.unique(level_values, return_inverse=True)
-    n_trials = np.bincount(inverse, minlength=levels.size)
-    inside = (sel.time_ms >= edges[0]) & (sel.time_ms < edges[-1])
-    bins = np.clip(np.searchsorted(edges, sel.time_ms[inside], side="right") - 1, 0, edges.size - 2)
-    flat = inverse[sel.spike_trial[inside]] * (edges.size - 1) + bins
-    counts = np.bincount(flat, minlength=levels.size * (edges.size - 1)).reshape(levels.size, -1)
-    return levels, n_trials, counts / n_trials[:, None] / ((edges[1] - edges[0]) * 1e-3)
-
-
 def threshold_latency(rec: Recording, unit: str, panel: LatencyPanel) -> pd.DataFrame:
     """Onset as the start of the first bin in the response window that begins a run of
     ``threshold_bins`` consecutive bins above baseline mean + ``threshold_sd`` x baseline SD
@@ -63,7 +52,8 @@ def threshold_latency(rec: Recording, unit: str, panel: LatencyPanel) -> pd.Data
     start, w = panel.baseline_ms[0], panel.bin_ms
     n = int(np.ceil((panel.response_ms[1] - start) / w - 1e-9))
     edges = start + w * np.arange(n + 1)
-    levels, n_trials, rate = _level_rates(sel, sel.trials["level"].to_numpy(), edges)
+    levels, n_trials, counts = level_bin_counts(sel, edges)
+    rate = counts / n_trials[:, None] / (w * 1e-3)
     base = edges[1:] <= panel.baseline_ms[1] + 1e-9
     resp = edges[:-1] >= panel.response_ms[0] - 1e-9
     m = panel.threshold_bins

@@ -11,6 +11,7 @@ import pandas as pd
 from figspec.compute.optimal import choose_bandwidth, choose_bin_width
 from figspec.compute.selection import Selection, select
 from figspec.compute.smoothing import causal_smooth, gaussian_smooth
+from figspec.compute.trial_counts import level_bin_counts
 from figspec.data.recording import Recording
 from figspec.errors import DataError, FigspecWarning, Problem
 from figspec.spec.panels import PsthPanel
@@ -34,11 +35,12 @@ def level_groups(sel: Selection) -> list[tuple[np.ndarray, int]]:
     return [(sel.time_ms[spike_level == i], int(n_trials[i])) for i in range(levels.size)]
 
 
-def resolve_widths(rec: Recording, panel: PsthPanel, units: list[str]) -> tuple[float, float | None]:
-    """The bin width and kernel width (ms) to use, choosing 'auto' ones from the data."""
-    sels = [select(rec, u, panel.window_ms, panel.levels) for u in units]
-    groups = [g for sel in sels for g in level_groups(sel)]
+def resolve_widths(sels: list[Selection], panel: PsthPanel) -> tuple[float, float | None]:
+    """The bin width and kernel width (ms) to use, choosing 'auto' ones from the units' data."""
     bin_ms = panel.bin_ms
+    if bin_ms != "auto" and panel.kernel_ms != "auto":
+        return float(bin_ms), panel.kernel_ms
+    groups = [g for sel in sels for g in level_groups(sel)]
     if bin_ms == "auto":
         choice = choose_bin_width(groups, panel.window_ms, panel.bin_search_ms)
         if not choice.interior:
@@ -61,17 +63,11 @@ def resolve_widths(rec: Recording, panel: PsthPanel, units: list[str]) -> tuple[
     return float(bin_ms), kernel
 
 
-def unit_rates(rec: Recording, unit: str, panel: PsthPanel, bin_ms: float, kernel_ms: float | None) -> pd.DataFrame:
-    """One unit's PSTH table (see :func:`psth_table`)."""
-    sel = select(rec, unit, panel.window_ms, panel.levels)
+def unit_rates(sel: Selection, unit: str, panel: PsthPanel, bin_ms: float, kernel_ms: float | None) -> pd.DataFrame:
+    """One unit's PSTH table (see :func:`psth_table`) from its selected trials and spikes."""
     edges = bin_edges(panel.window_ms, bin_ms)
     n_bins = edges.size - 1
-    levels, level_of_trial = np.unique(sel.trials["level"].to_numpy(), return_inverse=True)
-    n_trials = np.bincount(level_of_trial, minlength=levels.size)
-    bins = np.searchsorted(edges, sel.time_ms, side="right") - 1
-    bins = np.clip(bins, 0, n_bins - 1)  # guards round-off at the edges; times are inside the window
-    flat = level_of_trial[sel.spike_trial] * n_bins + bins
-    counts = np.bincount(flat, minlength=levels.size * n_bins).reshape(levels.size, n_bins)
+    levels, n_trials, counts = level_bin_counts(sel, edges)
     per_trial = counts / n_trials[:, None]
     if panel.measure == "count":
         rate = counts.astype(float)
@@ -130,8 +126,9 @@ def psth_table(rec: Recording, panel: PsthPanel) -> pd.DataFrame:
     rate_sem, n_units : population only: SEM across units (ddof = 1) and the number of units.
     """
     units = panel.units or [panel.unit]
-    bin_ms, kernel_ms = resolve_widths(rec, panel, units)
-    frames = [unit_rates(rec, u, panel, bin_ms, kernel_ms) for u in units]
+    sels = [select(rec, u, panel.window_ms, panel.levels) for u in units]   # once per unit
+    bin_ms, kernel_ms = resolve_widths(sels, panel)
+    frames = [unit_rates(sel, u, panel, bin_ms, kernel_ms) for sel, u in zip(sels, units)]
     if len(frames) == 1 or panel.repeat == "unit":
         return pd.concat(frames, ignore_index=True)
     both = pd.concat(frames, ignore_index=True)
