@@ -16,14 +16,14 @@ import time
 import numpy as np
 import pandas as pd
 
-from figspec.compute.psth import psth_table
-from figspec.compute.raster import raster_table
 from figspec.compute.summary import latency_tables, level_response_tables
 from figspec.data.assemble import TrialCounts, assemble
 from figspec.spec.models import LevelSpec
 from figspec.spec.panels import LatencyPanel, LevelResponsePanel, PsthPanel, RasterPanel
 
 LEVELS = np.arange(0.0, 81.0, 10.0)
+
+from helpers import compute_panel
 
 
 def recording(n_spikes: int, trials_per_level: int, seed: int = 3):
@@ -42,8 +42,8 @@ def recording(n_spikes: int, trials_per_level: int, seed: int = 3):
 
 
 def compute_all(rec) -> None:
-    raster_table(rec, RasterPanel(name="r", kind="raster", unit="u1"))
-    psth_table(rec, PsthPanel(name="p", kind="psth", unit="u1", bin_ms=1))
+    compute_panel(rec, RasterPanel(name="r", kind="raster", unit="u1"))
+    compute_panel(rec, PsthPanel(name="p", kind="psth", unit="u1", bin_ms=1))
     levels = LevelSpec(unit="dB SPL", scale="pressure_db")
     latency_tables(rec, LatencyPanel(name="l", kind="latency", unit="u1", response_ms=(0, 60)), levels)
     level_response_tables(rec, LevelResponsePanel(name="v", kind="level_response", unit="u1",

@@ -73,10 +73,10 @@ def _parser() -> argparse.ArgumentParser:
     which.add_argument("--rev", metavar="REVISION", help="the old version: the same file at this git revision")
     dif.add_argument("-o", "--outdir", default="figure_diff", help="where the images and summary go")
     for sub_parser in (render, check):
-        sub_parser.add_argument("--preflight", nargs="?", const="", metavar="PROFILE",
-                                help="check the rendered figure against a profile (default: the spec's "
-                                     "figure.profile), e.g. nature, jneurosci, cell")
-        sub_parser.add_argument("--strict", action="store_true", help="preflight findings exit 2")
+        sub_parser.add_argument("--journal", nargs="?", const="", metavar="PROFILE",
+                                help="check the rendered figure against a journal profile (default: the "
+                                     "spec's figure.journal), e.g. nature, jneurosci, cell")
+        sub_parser.add_argument("--strict", action="store_true", help="journal check findings exit 2")
     return parser
 
 
@@ -102,12 +102,12 @@ def run(argv: Sequence[str] | None = None) -> int:
                 resolved = pipeline.check(path, args.style)
                 for note in pipeline.notes(resolved):
                     print(f"note: {note}", file=sys.stderr)
-                profile = args.preflight or None
+                profile = args.journal or None
                 if args.command == "render":
                     result = pipeline.render(path, args.outdir, formats, resolved=resolved, profile=profile)
                     print(f"{path}: wrote {len(result.files)} files to {args.outdir}")
-                elif args.preflight is not None:
-                    result = pipeline.preflight(resolved, profile)
+                elif args.journal is not None:
+                    result = pipeline.journal_check(resolved, profile)
                 else:
                     result = None
                     print(f"{path}: ok ({len(resolved.panels)} panels)")
@@ -115,7 +115,7 @@ def run(argv: Sequence[str] | None = None) -> int:
                     for finding in result.findings:
                         print(f"{path}: {finding.format(result.profile)}", file=sys.stderr)
                     count = len(result.findings)
-                    print(f"{path}: preflight {result.profile.name}: {count} finding{'' if count == 1 else 's'}")
+                    print(f"{path}: journal check {result.profile.name}: {count} finding{'' if count == 1 else 's'}")
                     failed = failed or (args.strict and bool(result.findings))
             except UserError as err:
                 failed = True

@@ -79,9 +79,5 @@ class DataError(UserError):
     """A data source is missing, unreadable or does not fit the spec."""
 
 
-class InternalError(FigspecError, RuntimeError):
-    """A bug in figspec: reported with a traceback, exit code 1."""
-
-
 class FigspecWarning(UserWarning):
     """Something the scientist should know about the figure (printed by the CLI)."""

@@ -1,10 +1,13 @@
-"""The one table of panel kinds: kind -> parameter model, compute function, draw function.
+"""The one table of panel kinds: kind -> everything figspec knows about it.
 
-Adding a kind: a model in spec/panels.py (and in the ``Panel`` union), a compute function
-``(recording, panel, levels) -> table or {name: table}``, a draw function
-``(target, table(s), panel, draw context)``, one line here, one test file. ``rows`` kinds get
-one axes per level (``target`` is ``{level: axes}``); ``single`` kinds get one axes. Nothing
-registers itself on import.
+An entry names the kind's parameter model, its compute function ``(recording, panel, levels)
+-> table or {part: table}``, its draw function ``(target, tables, panel, draw context)``, its
+default labels ``(panel, tables, levels) -> Labels`` and whether it draws ``rows`` (one axes
+per level or unit: ``target`` is ``{group: axes}``) or a ``single`` axes. Optional hooks, each
+with a generic default, say the rest: data limits for shared scales, the write-back of
+automatic choices, data checks, ``check`` notes, statistics rows, the legend sentence and how
+to read categorical colours for the colour-vision check. Nothing outside the kind's own
+modules and this table branches on a kind's name, and nothing registers itself on import.
 """
 
 from __future__ import annotations
@@ -12,13 +15,33 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Callable, Literal
 
-from figspec.compute.psth import psth_table
-from figspec.compute.raster import raster_table
-from figspec.compute.summary import latency_tables, level_response_tables
-from figspec.draw.psth import draw_psth
-from figspec.draw.raster import draw_raster
-from figspec.draw.summary import draw_latency, draw_level_response
+from figspec.compute import latency, level_response, psth, raster
+from figspec.compute.describe import generic_legend, trial_rows
+from figspec.draw import latency as latency_art
+from figspec.draw import level_response as level_response_art
+from figspec.draw import psth as psth_art
+from figspec.draw import raster as raster_art
+from figspec.draw.colours import marked_categories
 from figspec.spec.panels import LatencyPanel, LevelResponsePanel, PsthPanel, RasterPanel
+
+
+def unchanged(rec, panel, levels):
+    """Default write-back: the panel needs nothing filled in from the data."""
+    return panel
+
+
+def no_problems(rec, panel, levels) -> list:
+    """Default data check: nothing beyond the checks every panel gets."""
+    return []
+
+
+def no_notes(panel) -> list[str]:
+    return []
+
+
+def no_limits(panel, tables) -> dict:
+    """Default data limits: nothing to share."""
+    return {}
 
 
 @dataclass(frozen=True)
@@ -26,16 +49,32 @@ class PanelKind:
     model: type
     compute: Callable
     draw: Callable
+    labels: Callable
     layout: Literal["rows", "single"]
-    default_title: str
+    limits: Callable = no_limits
+    resolve: Callable = unchanged
+    check: Callable = no_problems
+    notes: Callable = no_notes
+    statistics: Callable = trial_rows
+    legend: Callable = generic_legend
+    categories: Callable = marked_categories
 
 
 PANEL_KINDS: dict[str, PanelKind] = {
-    "raster": PanelKind(RasterPanel, lambda rec, panel, levels: raster_table(rec, panel), draw_raster,
-                        "rows", "Spikes"),
-    "psth": PanelKind(PsthPanel, lambda rec, panel, levels: psth_table(rec, panel), draw_psth,
-                      "rows", "Firing rate"),
-    "level_response": PanelKind(LevelResponsePanel, level_response_tables, draw_level_response,
-                                "single", "Response vs level"),
-    "latency": PanelKind(LatencyPanel, latency_tables, draw_latency, "single", "Latency vs level"),
+    "raster": PanelKind(RasterPanel, raster.compute, raster_art.draw, raster_art.labels, "rows",
+                        limits=raster_art.limits, legend=raster.legend),
+    "psth": PanelKind(PsthPanel, psth.compute, psth_art.draw, psth_art.labels, "rows", limits=psth_art.limits,
+                      resolve=psth.resolve, notes=psth.notes, statistics=psth.statistics, legend=psth.legend),
+    "level_response": PanelKind(LevelResponsePanel, level_response.compute, level_response_art.draw,
+                                level_response_art.labels, "single", limits=level_response_art.limits,
+                                check=level_response.check, statistics=level_response.statistics,
+                                legend=level_response.legend),
+    "latency": PanelKind(LatencyPanel, latency.compute, latency_art.draw, latency_art.labels, "single",
+                         limits=latency_art.limits, check=latency.check, statistics=latency.statistics,
+                         legend=latency.legend),
 }
+
+
+def kind_of(panel) -> PanelKind:
+    return PANEL_KINDS[panel.kind]
+

@@ -22,15 +22,15 @@ from figspec.output.files import write_all
 from figspec.output.report import sha256
 from figspec.spec.diff import key_changes
 
-HASHES = "hashes.json"
+FINGERPRINTS = "fingerprints.json"   # sha256 of every format of each baseline
 FORMATS = ("png", "svg", "pdf")
 
 
 def snapshot(specs: Sequence[Path], folder: Path) -> list[Path]:
     """Store ``<stem>.png`` of each spec in ``folder`` and the sha256 of every format in
-    ``folder/hashes.json`` (exact bytes: comparable only within one set of versions)."""
+    ``folder/fingerprints.json`` (exact bytes: comparable only within one set of versions)."""
     folder = Path(folder)
-    hashes_path = folder / HASHES
+    hashes_path = folder / FINGERPRINTS
     hashes = json.loads(hashes_path.read_text()) if hashes_path.is_file() else {}
     payload = {}
     for spec in specs:
@@ -53,24 +53,24 @@ class Comparison:
 
 def compare(specs: Sequence[Path], folder: Path, tolerance: float, results: Path) -> list[Comparison]:
     """Render each spec again and compare with its baseline in ``folder``. Writes
-    ``<stem>.png``, ``<stem>-expected.png`` and (on a difference) ``<stem>-failed-diff.png`` to
-    ``results``, plus ``summary.txt``."""
+    ``<stem>.new.png``, ``<stem>.baseline.png`` and (on a difference) ``<stem>.difference.png``
+    to ``results``, plus ``summary.txt``."""
     folder, results = Path(folder), Path(results)
     results.mkdir(parents=True, exist_ok=True)
-    stored = json.loads((folder / HASHES).read_text()) if (folder / HASHES).is_file() else {}
+    stored = json.loads((folder / FINGERPRINTS).read_text()) if (folder / FINGERPRINTS).is_file() else {}
     out = []
     for spec in specs:
         stem = Path(spec).stem
         files, _ = pipeline.render_in_memory(pipeline.check(spec), FORMATS)
-        actual = results / f"{stem}.png"
+        actual = results / f"{stem}.new.png"
         write_all({actual: files["png"]})
         expected = folder / f"{stem}.png"
         if not expected.is_file():
             out.append(Comparison(ImageResult(stem, None, False, f"no baseline {expected}"), {}))
             continue
-        shutil.copyfile(expected, results / f"{stem}-expected.png")
+        shutil.copyfile(expected, results / f"{stem}.baseline.png")
         same = {fmt: stored.get(stem, {}).get(fmt) == sha256(data) for fmt, data in files.items()}
-        out.append(Comparison(rms_difference(expected, actual, tolerance), same))
+        out.append(Comparison(rms_difference(expected, actual, tolerance, results / f"{stem}.difference.png"), same))
     lines = [f"{c.image.name}: {'same' if c.passed else 'DIFFERS'}: {c.image.message}; identical bytes: "
              + ", ".join(f"{fmt} {'yes' if ok else 'no'}" for fmt, ok in c.identical_bytes.items()) for c in out]
     (results / "summary.txt").write_text("\n".join(lines) + "\n")
@@ -112,7 +112,6 @@ def diff(new: Path, old: Path | None, revision: str | None, outdir: Path) -> lis
     write_all({folder / "old.png": old_files["png"], folder / "new.png": new_files["png"],
                folder / "side_by_side.png": pair, folder / "difference.png": difference})
     image = rms_difference(folder / "old.png", folder / "new.png", 0.0)
-    (folder / "new-failed-diff.png").unlink(missing_ok=True)   # difference.png shows it already
     against = f"{old}" if old is not None else f"{new} at {revision} (data from the working tree)"
     lines = [f"comparing {new} with {against}", "spec:"]
     lines += ["  " + line for line in key_changes(tomli.loads(old_text), tomli.loads(new.read_text()))] or ["  no change"]

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import os
 import shutil
+import unittest
 from pathlib import Path
 
 from figspec import pipeline
@@ -20,23 +21,22 @@ from figspec.output.files import write_all
 
 
 def assert_figure_matches(spec: str | Path, baseline_dir: str | Path, tolerance: float = 1.0,
-                          results_dir: str | Path = "result_images", update: bool | None = None) -> None:
-    """Render ``spec`` to PNG and compare it with ``baseline_dir/<stem>.png`` (RMS over 0-255
-    channels, matplotlib.testing.compare). Writes ``<stem>.png``, ``<stem>-expected.png`` and,
-    on failure, ``<stem>-failed-diff.png`` under ``results_dir``; raises AssertionError when
-    the figure differs by more than ``tolerance`` or the baseline is missing."""
-    import pytest
-
+                          results_dir: str | Path = "figure_checks", update: bool | None = None) -> None:
+    """Render ``spec`` to PNG and compare it with ``baseline_dir/<stem>.png`` (RMS over the RGB
+    channels on a 0-255 scale, :func:`figspec.output.compare.rms`). Writes ``<stem>.new.png``,
+    ``<stem>.baseline.png`` and, on failure, ``<stem>.difference.png`` under ``results_dir``;
+    raises AssertionError when the figure differs by more than ``tolerance`` or the baseline is
+    missing."""
     spec = Path(spec)
     files, _ = pipeline.render_in_memory(pipeline.check(spec))
     results, baselines = Path(results_dir), Path(baseline_dir)
-    actual, expected = results / f"{spec.stem}.png", baselines / f"{spec.stem}.png"
+    actual, expected = results / f"{spec.stem}.new.png", baselines / f"{spec.stem}.png"
     write_all({actual: files["png"]})
     if update if update is not None else bool(os.environ.get("FIGSPEC_UPDATE_BASELINES")):
         write_all({expected: files["png"]})
-        pytest.skip(f"baseline {expected} written: look at it before committing")
+        raise unittest.SkipTest(f"baseline {expected} written: look at it before committing")
     if not expected.is_file():
         raise AssertionError(f"no baseline {expected}: run with FIGSPEC_UPDATE_BASELINES=1 to create it")
-    shutil.copyfile(expected, results / f"{spec.stem}-expected.png")
-    result = rms_difference(expected, actual, tolerance)
+    shutil.copyfile(expected, results / f"{spec.stem}.baseline.png")
+    result = rms_difference(expected, actual, tolerance, results / f"{spec.stem}.difference.png")
     assert result.passed, f"{spec}: {result.message} (see {results})"

@@ -31,6 +31,25 @@ def panel(kind: str, **keys):
     return model.model_validate({"name": "p", "kind": kind, "unit": "u1", **keys})
 
 
+HOUSE_STYLE = ROOT / "styles" / "house.toml"
+
+
+def demo_text(name: str) -> str:
+    """A demo spec's text with its data and house style named by absolute path, so the spec
+    can be written anywhere (a tmp folder) and still find them."""
+    text = (SPECS / f"{name}.toml").read_text()
+    return text.replace('"data/', f'"{SPECS / "data"}/').replace('style = "house"', f'style = "{HOUSE_STYLE}"')
+
+
+def copy_project(folder: Path) -> Path:
+    """Copy the demo specs and the house style beside them (the project layout), return specs/."""
+    import shutil
+
+    shutil.copytree(SPECS, folder / "specs")
+    shutil.copytree(ROOT / "styles", folder / "styles")
+    return folder / "specs"
+
+
 def write_spec(folder: Path, text: str, name: str = "spec.toml") -> Path:
     """Write a spec file; ``@DATA@`` is replaced by the demo data folder."""
     path = folder / name
@@ -73,3 +92,14 @@ def draw_now(fig):
     FigureCanvasAgg(fig)
     fig.canvas.draw()
     return fig
+
+
+def compute_panel(rec, panel_model, levels=None):
+    """A panel's tables through its registry entry: the kind's write-back of automatic choices,
+    then its compute function (what the pipeline does for each panel)."""
+    from figspec.registry import kind_of
+    from figspec.spec.models import LevelSpec
+
+    levels = levels or LevelSpec()
+    kind = kind_of(panel_model)
+    return kind.compute(rec, kind.resolve(rec, panel_model, levels), levels)

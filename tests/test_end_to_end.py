@@ -2,7 +2,7 @@
 helper labs use for their own figures (figspec.testing).
 
 Refresh after an intended change: ``FIGSPEC_UPDATE_BASELINES=1 python -m pytest tests/test_end_to_end.py``
-then look at the new PNGs before committing them.
+then look at the new PNGs in tests/reference_figures/ before committing them.
 """
 
 from pathlib import Path
@@ -13,15 +13,16 @@ from figspec.testing import assert_figure_matches
 
 from helpers import ROOT, SPECS
 
-BASELINES = Path(__file__).parent / "baseline_images" / "test_end_to_end"
-RESULTS = ROOT / "result_images" / "test_end_to_end"
+BASELINES = Path(__file__).parent / "reference_figures"
+RESULTS = ROOT / "figure_checks" / "end_to_end"
 
-# RMS over channels on a 0-255 scale (matplotlib.testing.compare). Same versions render the
-# same bytes (RMS 0); 1.0 lets through sub-pixel anti-aliasing drift but not a changed label
-# (RMS about 11) or a 1 % shift (about 19), measured on a small figure (REFERENCES.md).
-TOLERANCE = 1.0
+# RMS over RGB channels on a 0-255 scale (figspec.output.compare.rms). The same versions
+# render the same bytes (RMS 0); measured here, changing bin_ms 5 -> 4 moves the level grid by
+# RMS 11.9 and a changed panel title moves the composite by 8.7, so each tolerance lets
+# sub-pixel anti-aliasing drift through but not a changed label or bin.
+TOLERANCES = {"level_grid": 1.0, "unit_composite": 1.5}
 
 
-@pytest.mark.parametrize("name", ["level_grid", "unit_composite"])
+@pytest.mark.parametrize("name", sorted(TOLERANCES))
 def test_demo_figure_matches_baseline(name):
-    assert_figure_matches(SPECS / f"{name}.toml", BASELINES, TOLERANCE, RESULTS)
+    assert_figure_matches(SPECS / f"{name}.toml", BASELINES, TOLERANCES[name], RESULTS)

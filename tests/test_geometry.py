@@ -8,7 +8,7 @@ import pytest
 
 from figspec import pipeline
 from figspec.draw.context import styled
-from figspec.output.inspect import drawn_texts as visible_texts
+from figspec.output.drawn import drawn_texts as visible_texts
 
 from helpers import SPECS, draw_now
 

@@ -14,9 +14,10 @@ import pytest
 from matplotlib.collections import LineCollection
 
 from figspec import pipeline
+from figspec.spec.style import BUILTIN_STYLES
 from figspec.draw.context import styled
 
-from helpers import DEMO_SPEC, ROOT, SPECS, draw_now
+from helpers import DEMO_SPEC, ROOT, SPECS, draw_now, copy_project, demo_text
 
 DEMOS = sorted(SPECS.glob("*.toml"))
 
@@ -54,8 +55,9 @@ def test_manifest_lists_inputs_outputs_and_resolved_defaults(two_renders):
     assert inputs["spec"]["sha256"] == sha(DEMO_SPEC)
     assert inputs["data:midbrain:spikes"]["sha256"] == sha(SPECS / "data" / "spikes.csv")
     assert inputs["data:midbrain:trials"]["sha256"] == sha(SPECS / "data" / "trials.csv")
-    assert inputs["style"]["path"] == "figspec:styles/default.toml"
-    assert inputs["style"]["sha256"] == sha(ROOT / "styles" / "default.toml")
+    assert inputs["style:house"]["path"] == "styles/house.toml"           # the lab's, which extends ...
+    assert inputs["style:default"]["path"] == "figspec:styles/default.toml"   # ... figspec's own
+    assert inputs["style:default"]["sha256"] == sha(BUILTIN_STYLES / "default.toml")
     outputs = {o["path"]: o["sha256"] for o in manifest["outputs"]}
     assert set(outputs) >= {"level_grid.svg", "level_grid.pdf", "level_grid.png", "level_grid_data/rate.csv",
                             "level_grid_data/statistics.csv", "level_grid_data/legend.md"}
@@ -118,8 +120,7 @@ def test_failed_render_leaves_earlier_outputs_untouched(tmp_path, monkeypatch):
 
     monkeypatch.setattr(files.os, "fdopen", failing)
     changed = tmp_path / "changed.toml"
-    changed.write_text(DEMO_SPEC.read_text().replace("bin_ms = 5", "bin_ms = 10")
-                       .replace("data/", str(SPECS / "data") + "/"))
+    changed.write_text(demo_text("level_grid").replace("bin_ms = 5", "bin_ms = 10"))
     shutil.copy(changed, tmp_path / "level_grid.toml")
     with pytest.raises(OSError, match="disk full"):
         pipeline.render(tmp_path / "level_grid.toml", out)
@@ -128,7 +129,7 @@ def test_failed_render_leaves_earlier_outputs_untouched(tmp_path, monkeypatch):
 
 
 def test_compare_passes_unchanged_and_catches_a_1_ms_bin_change(tmp_path):
-    shutil.copytree(SPECS, tmp_path / "specs")
+    copy_project(tmp_path)
     spec = tmp_path / "specs" / "level_grid.toml"
     assert figspec("snapshot", spec, "--dir", tmp_path / "base").returncode == 0
     same = figspec("compare", spec, "--dir", tmp_path / "base", "-o", tmp_path / "cmp")
@@ -136,12 +137,12 @@ def test_compare_passes_unchanged_and_catches_a_1_ms_bin_change(tmp_path):
     spec.write_text(spec.read_text().replace("bin_ms = 5", "bin_ms = 4"))
     differs = figspec("compare", spec, "--dir", tmp_path / "base", "-o", tmp_path / "cmp")
     assert differs.returncode == 3 and "level_grid: DIFFERS: RMS" in differs.stdout
-    assert {"level_grid.png", "level_grid-expected.png", "level_grid-failed-diff.png", "summary.txt"} <= \
+    assert {"level_grid.new.png", "level_grid.baseline.png", "level_grid.difference.png", "summary.txt"} <= \
         {p.name for p in (tmp_path / "cmp").iterdir()}
 
 
 def test_diff_against_a_git_revision_reports_the_key_change(tmp_path):
-    shutil.copytree(SPECS, tmp_path / "specs")
+    copy_project(tmp_path)
     git = lambda *a: subprocess.run(["git", *a], cwd=tmp_path, capture_output=True, text=True, check=True)  # noqa: E731
     git("init", "-q")
     git("-c", "user.name=t", "-c", "user.email=t@example.org", "add", ".")

@@ -1,7 +1,7 @@
 """Bounded weighted least-squares fits of level functions: Naka-Rushton (Hill) and Pieron.
 
 Naka & Rushton 1966, J Physiol 185:536-555 (the Hill 1910 form); Pieron 1914 (Luce 1986,
-Response Times). Levels in dB are fitted on the linear quantity (see :mod:`levels`); for dB
+Response Times). Levels in dB are fitted on the linear quantity (see :mod:`decibels`); for dB
 levels the Naka-Rushton midpoint is fitted as a level L50, which is the same model:
 x^n / (x^n + x50^n) = 1 / (1 + 10^(n (L50 - L) / d)), d = 20 (pressure) or 10 (power).
 """
@@ -12,11 +12,8 @@ import warnings
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy.optimize import OptimizeWarning, curve_fit
-from scipy.stats import chi2, norm
-from scipy.stats import t as student_t
 
-from figspec.compute.levels import DB_DIVISOR, to_linear
+from figspec.compute.decibels import DB_DIVISOR, to_linear
 
 CONDITION_LIMIT = 1e12
 
@@ -74,6 +71,10 @@ def fit(model: str, level: np.ndarray, y: np.ndarray, sigma: np.ndarray | None, 
     estimate +/- z SE from the covariance (weighted; normal quantile) or +/- t SE (unweighted,
     Student t with n - p degrees of freedom).
     """
+    from scipy.optimize import OptimizeWarning, curve_fit
+    from scipy.stats import chi2, norm
+    from scipy.stats import t as student_t
+
     keep = np.isfinite(level) & np.isfinite(y)
     level, y = np.asarray(level, float)[keep], np.asarray(y, float)[keep]
     sigma = None if sigma is None else np.asarray(sigma, float)[keep]

@@ -8,12 +8,14 @@ import warnings
 import numpy as np
 import pandas as pd
 
+from figspec.compute.describe import About, count_text, trial_rows, unit_text
 from figspec.compute.optimal import choose_bandwidth, choose_bin_width
 from figspec.compute.selection import Selection, select
 from figspec.compute.smoothing import causal_smooth, gaussian_smooth
-from figspec.compute.trial_counts import level_bin_counts
+from figspec.compute.trial_counts import level_bin_counts, level_spike_times
 from figspec.data.recording import Recording
 from figspec.errors import DataError, FigspecWarning, Problem
+from figspec.spec.models import LevelSpec
 from figspec.spec.panels import PsthPanel
 
 RATE_UNITS = {"spikes_per_s": "spikes/s", "spikes_per_trial": "spikes/trial", "count": "spikes",
@@ -27,12 +29,17 @@ def bin_edges(window_ms: tuple[float, float], bin_ms: float) -> np.ndarray:
     return window_ms[0] + bin_ms * np.arange(n + 1)
 
 
-def level_groups(sel: Selection) -> list[tuple[np.ndarray, int]]:
-    """(pooled spike times, trials presented) of each level of a selection."""
-    levels, level_of_trial = np.unique(sel.trials["level"].to_numpy(), return_inverse=True)
-    n_trials = np.bincount(level_of_trial, minlength=levels.size)
-    spike_level = level_of_trial[sel.spike_trial]
-    return [(sel.time_ms[spike_level == i], int(n_trials[i])) for i in range(levels.size)]
+def _selections(rec: Recording, panel: PsthPanel) -> list[Selection]:
+    return [select(rec, u, panel.window_ms, panel.levels) for u in panel.unit_names()]
+
+
+def resolve(rec: Recording, panel: PsthPanel, levels: LevelSpec) -> PsthPanel:
+    """The panel with ``"auto"`` bin and kernel widths replaced by the widths chosen from the
+    data, so every output shows the value used."""
+    if panel.bin_ms != "auto" and panel.kernel_ms != "auto":
+        return panel
+    bin_ms, kernel_ms = resolve_widths(_selections(rec, panel), panel)
+    return panel.model_copy(update={"bin_ms": bin_ms, "kernel_ms": kernel_ms})
 
 
 def resolve_widths(sels: list[Selection], panel: PsthPanel) -> tuple[float, float | None]:
@@ -40,7 +47,7 @@ def resolve_widths(sels: list[Selection], panel: PsthPanel) -> tuple[float, floa
     bin_ms = panel.bin_ms
     if bin_ms != "auto" and panel.kernel_ms != "auto":
         return float(bin_ms), panel.kernel_ms
-    groups = [g for sel in sels for g in level_groups(sel)]
+    groups = [g for sel in sels for g in level_spike_times(sel)]
     if bin_ms == "auto":
         choice = choose_bin_width(groups, panel.window_ms, panel.bin_search_ms)
         if not choice.interior:
@@ -67,7 +74,7 @@ def unit_rates(sel: Selection, unit: str, panel: PsthPanel, bin_ms: float, kerne
     """One unit's PSTH table (see :func:`psth_table`) from its selected trials and spikes."""
     edges = bin_edges(panel.window_ms, bin_ms)
     n_bins = edges.size - 1
-    levels, n_trials, counts = level_bin_counts(sel, edges)
+    levels, n_trials, counts = sel.levels, sel.n_trials, level_bin_counts(sel, edges)
     per_trial = counts / n_trials[:, None]
     if panel.measure == "count":
         rate = counts.astype(float)
@@ -104,7 +111,7 @@ def _z_score(rate: np.ndarray, edges: np.ndarray, panel: PsthPanel, unit: str) -
         return np.where(sd > 0, (rate - mean) / np.where(sd > 0, sd, 1.0), np.nan)
 
 
-def psth_table(rec: Recording, panel: PsthPanel) -> pd.DataFrame:
+def compute(rec: Recording, panel: PsthPanel, levels: LevelSpec) -> pd.DataFrame:
     """Spike counts per level and bin, and the rate in the panel's measure.
 
     The rate divides by the number of trials *presented* at the level (from the trial table),
@@ -125,10 +132,11 @@ def psth_table(rec: Recording, panel: PsthPanel) -> pd.DataFrame:
         ``SD from baseline``.
     rate_sem, n_units : population only: SEM across units (ddof = 1) and the number of units.
     """
-    units = panel.units or [panel.unit]
-    sels = [select(rec, u, panel.window_ms, panel.levels) for u in units]   # once per unit
-    bin_ms, kernel_ms = resolve_widths(sels, panel)
-    frames = [unit_rates(sel, u, panel, bin_ms, kernel_ms) for sel, u in zip(sels, units)]
+    units = panel.unit_names()
+    if panel.bin_ms == "auto" or panel.kernel_ms == "auto":
+        raise ValueError("resolve the panel's automatic widths first (psth.resolve)")
+    frames = [unit_rates(sel, u, panel, float(panel.bin_ms), panel.kernel_ms)
+              for sel, u in zip(_selections(rec, panel), units)]
     if len(frames) == 1 or panel.repeat == "unit":
         return pd.concat(frames, ignore_index=True)
     both = pd.concat(frames, ignore_index=True)
@@ -140,3 +148,35 @@ def psth_table(rec: Recording, panel: PsthPanel) -> pd.DataFrame:
     out.insert(0, "unit", "mean of " + ", ".join(units))
     out["rate_unit"] = frames[0]["rate_unit"].iloc[0]
     return out[["unit", *keys, "n_trials", "count", "rate", "rate_unit", "rate_sem", "n_units"]]
+
+
+def notes(panel: PsthPanel) -> list[str]:
+    """What ``figspec check`` points out about the panel."""
+    if not panel.lock_y and panel.arrange != "overlay":
+        return ["lock_y = false, so its rows do not share one y scale: compare heights only within a row"]
+    return []
+
+
+def statistics(panel: PsthPanel, table: pd.DataFrame) -> list[list]:
+    """Trials presented per unit and level (summed over units for a population)."""
+    return trial_rows(panel, table)
+
+
+def legend(panel: PsthPanel, table: pd.DataFrame, about: About) -> str:
+    """The panel's legend sentence: bins, measure, smoothing (with the width used and how it
+    was chosen), units and trials."""
+    declared = about.declared
+    auto_bin = " (chosen by the Shimazaki & Shinomoto 2007 cost)" if declared.bin_ms == "auto" else ""
+    text = (f"Firing rate in {float(panel.bin_ms):g}-ms bins{auto_bin} ({table['rate_unit'].iloc[0]}), "
+            "averaged over all trials presented")
+    if panel.smooth != "none":
+        how = " chosen by the Shimazaki & Shinomoto 2010 cost" if declared.kernel_ms == "auto" else ""
+        width = "SD" if panel.smooth == "gaussian" else "time constant"
+        text += f", smoothed with a {panel.smooth} kernel ({width} {panel.kernel_ms:.3g} ms{how})"
+    units, pooled = unit_text(table), ""
+    if "rate_sem" in table:
+        n_units = int(table["n_units"].max())
+        text += f"; line and band: mean ± SEM across {n_units} units"
+        units, pooled = ", ".join(panel.unit_names()), f" (summed over {n_units} units)"
+    return (f"- *{about.label}*: {text}; units {units}; n = {count_text(table['n_trials'])} trials per "
+            f"level{pooled}; time from stimulus onset, window {panel.window_ms[0]:g} to {panel.window_ms[1]:g} ms.")

@@ -5,18 +5,19 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
+from figspec.compute.describe import About, count_text, unit_text
 from figspec.compute.selection import select
 from figspec.data.recording import Recording
+from figspec.spec.models import LevelSpec
 from figspec.spec.panels import RasterPanel
 
 COLUMNS = ("unit", "level", "trial", "row", "time_ms")
 
 
-def raster_table(rec: Recording, panel: RasterPanel) -> pd.DataFrame:
+def compute(rec: Recording, panel: RasterPanel, levels: LevelSpec) -> pd.DataFrame:
     """The raster table of the panel's unit, or of each of its ``units`` in turn (see
     :func:`unit_raster`)."""
-    units = panel.units if panel.repeat == "unit" else [panel.unit]
-    return pd.concat([unit_raster(rec, u, panel) for u in units], ignore_index=True)
+    return pd.concat([unit_raster(rec, u, panel) for u in panel.unit_names()], ignore_index=True)
 
 
 def unit_raster(rec: Recording, unit: str, panel: RasterPanel) -> pd.DataFrame:
@@ -28,6 +29,7 @@ def unit_raster(rec: Recording, unit: str, panel: RasterPanel) -> pd.DataFrame:
     level : stimulus level (the spec's level unit).
     trial : trial id from the data.
     row : 0-based line of the trial within its level, in presentation order.
+    n_trials : trials presented at the level (lines drawn).
     time_ms : spike time from stimulus onset (ms); empty (NaN) for a trial with no spike in
         the window, so the trial is still counted and drawn as an empty line.
     """
@@ -41,4 +43,10 @@ def unit_raster(rec: Recording, unit: str, panel: RasterPanel) -> pd.DataFrame:
     t = sel.trials
     return pd.DataFrame({"unit": unit, "level": t["level"].to_numpy()[idx],
                          "trial": t["trial"].to_numpy()[idx], "row": t["row"].to_numpy()[idx],
-                         "time_ms": times}, columns=list(COLUMNS))
+                         "n_trials": sel.n_trials[sel.trial_level[idx]], "time_ms": times})
+
+
+def legend(panel: RasterPanel, table: pd.DataFrame, about: About) -> str:
+    return (f"- *{about.label}*: Spike rasters (one line per trial presented, one tick per spike); "
+            f"units {unit_text(table)}; n = {count_text(table['n_trials'])} trials per level; "
+            f"time from stimulus onset, window {panel.window_ms[0]:g} to {panel.window_ms[1]:g} ms.")

@@ -1,4 +1,8 @@
-"""Select one unit's trials and spikes from a recording, vectorised."""
+"""Select one unit's trials and spikes from a recording, vectorised, grouped by level once.
+
+Every window and bin in figspec is half-open, ``[start, stop)``: a spike exactly at a start
+belongs to the window or bin that starts there, a spike exactly at a stop does not.
+"""
 
 from __future__ import annotations
 
@@ -20,21 +24,32 @@ class Selection:
     trials : one row per presented trial: ``pair`` (index into the recording's pairs),
         ``trial`` (id), ``level``, ``row`` (0-based position within its level, presentation
         order). Sorted by level, then row.
+    levels : the distinct levels of ``trials``, ascending.
+    trial_level : for each row of ``trials``, its index into ``levels``.
+    n_trials : trials presented at each of ``levels``.
     spike_trial : for each selected spike, its row index in ``trials``.
     time_ms : spike times relative to stimulus onset (ms), inside ``[start, stop)``.
     """
 
     trials: pd.DataFrame
+    levels: np.ndarray
+    trial_level: np.ndarray
+    n_trials: np.ndarray
     spike_trial: np.ndarray
     time_ms: np.ndarray
+
+    def inside(self, window_ms: tuple[float, float]) -> np.ndarray:
+        """Mask of the selected spikes in ``[start, stop)`` (ms)."""
+        return (self.time_ms >= window_ms[0]) & (self.time_ms < window_ms[1])
+
+    def spike_level(self) -> np.ndarray:
+        """For each selected spike, the index of its trial's level into ``levels``."""
+        return self.trial_level[self.spike_trial]
 
 
 def select(rec: Recording, unit: str, window_ms: tuple[float, float],
            levels: Sequence[float] | None = None) -> Selection:
-    """The trials of ``unit`` (optionally only ``levels``) and their spikes in ``window_ms``.
-
-    Spikes exactly at the window's stop are excluded (half-open window, like the bins).
-    """
+    """The trials of ``unit`` (optionally only ``levels``) and their spikes in ``[start, stop)``."""
     pairs = np.flatnonzero(rec.pair_unit == rec.units.index(unit))
     level = rec.pair_level()[pairs]
     if levels is not None:
@@ -42,7 +57,7 @@ def select(rec: Recording, unit: str, window_ms: tuple[float, float],
         pairs, level = pairs[keep], level[keep]
     order = np.argsort(level, kind="stable")            # pairs are in presentation order already
     pairs, level = pairs[order], level[order]
-    _, first, counts = np.unique(level, return_index=True, return_counts=True)
+    values, first, inverse, counts = np.unique(level, return_index=True, return_inverse=True, return_counts=True)
     row = np.arange(pairs.size) - np.repeat(first, counts)
     trials = pd.DataFrame({"pair": pairs, "trial": rec.trials["trial"].to_numpy()[rec.pair_trial[pairs]],
                            "level": level, "row": row})
@@ -52,4 +67,10 @@ def select(rec: Recording, unit: str, window_ms: tuple[float, float],
     spike_trial = row_of_pair[rec.spike_pair()]
     time_ms = rec.times_s * 1e3
     inside = (spike_trial >= 0) & (time_ms >= window_ms[0]) & (time_ms < window_ms[1])
-    return Selection(trials=trials, spike_trial=spike_trial[inside], time_ms=time_ms[inside])
+    return Selection(trials=trials, levels=values, trial_level=inverse.reshape(-1), n_trials=counts,
+                     spike_trial=spike_trial[inside], time_ms=time_ms[inside])
+
+
+def spanning(*windows: tuple[float, float]) -> tuple[float, float]:
+    """The smallest window holding every one of ``windows``."""
+    return min(w[0] for w in windows), max(w[1] for w in windows)

@@ -1,4 +1,5 @@
-"""Per-trial quantities of one unit: spike counts in a window, first spike in a window."""
+"""Per-trial and per-level quantities of one unit's selection: spike counts in a window,
+counts per level and bin, the first spike in a window. Windows and bins are ``[start, stop)``."""
 
 from __future__ import annotations
 
@@ -9,32 +10,33 @@ from figspec.compute.selection import Selection
 
 def counts_in(sel: Selection, window_ms: tuple[float, float]) -> np.ndarray:
     """Spikes of each selected trial in ``[start, stop)`` (ms), zero for trials without any."""
-    inside = (sel.time_ms >= window_ms[0]) & (sel.time_ms < window_ms[1])
-    return np.bincount(sel.spike_trial[inside], minlength=len(sel.trials))
+    return np.bincount(sel.spike_trial[sel.inside(window_ms)], minlength=len(sel.trials))
 
 
-def level_bin_counts(sel: Selection, edges: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """(levels, trials presented per level, spike counts per level and bin) for bins
-    ``[edges[i], edges[i+1])`` (ms), summed over each level's trials."""
-    levels, level_of_trial = np.unique(sel.trials["level"].to_numpy(), return_inverse=True)
-    n_trials = np.bincount(level_of_trial, minlength=levels.size)
+def level_bin_counts(sel: Selection, edges: np.ndarray) -> np.ndarray:
+    """Spike counts per level (rows, as ``sel.levels``) and bin ``[edges[i], edges[i+1])`` (ms),
+    summed over each level's trials."""
     n_bins = edges.size - 1
-    inside = (sel.time_ms >= edges[0]) & (sel.time_ms < edges[-1])
+    inside = sel.inside((edges[0], edges[-1]))
     bins = np.searchsorted(edges, sel.time_ms[inside], side="right") - 1
     bins = np.clip(bins, 0, n_bins - 1)  # guards round-off at the edges
-    flat = level_of_trial[sel.spike_trial[inside]] * n_bins + bins
-    counts = np.bincount(flat, minlength=levels.size * n_bins).reshape(levels.size, n_bins)
-    return levels, n_trials, counts
+    flat = sel.spike_level()[inside] * n_bins + bins
+    return np.bincount(flat, minlength=sel.levels.size * n_bins).reshape(sel.levels.size, n_bins)
+
+
+def level_spike_times(sel: Selection) -> list[tuple[np.ndarray, int]]:
+    """(pooled spike times in ms, trials presented) of each level of a selection."""
+    order = np.argsort(sel.spike_level(), kind="stable")
+    bounds = np.searchsorted(sel.spike_level()[order], np.arange(sel.levels.size + 1))
+    times = sel.time_ms[order]
+    return [(times[bounds[i]:bounds[i + 1]], int(sel.n_trials[i])) for i in range(sel.levels.size)]
 
 
 def first_spikes(sel: Selection, window_ms: tuple[float, float]) -> np.ndarray:
-    """Time (ms) of each selected trial's first spike in ``(start, stop]``; NaN for a trial with
-    no spike there (never zero)."""
-    inside = (sel.time_ms > window_ms[0]) & (sel.time_ms <= window_ms[1])
-    trial, time = sel.spike_trial[inside], sel.time_ms[inside]
-    first = np.full(len(sel.trials), np.nan)
-    order = np.lexsort((time, trial))
-    trial, time = trial[order], time[order]
-    starts = np.flatnonzero(np.r_[True, trial[1:] != trial[:-1]]) if trial.size else np.array([], int)
-    first[trial[starts]] = time[starts]
+    """Time (ms) of each selected trial's first spike in ``[start, stop)``; NaN for a trial
+    with no spike there (never zero)."""
+    inside = sel.inside(window_ms)
+    first = np.full(len(sel.trials), np.inf)
+    np.minimum.at(first, sel.spike_trial[inside], sel.time_ms[inside])
+    first[np.isinf(first)] = np.nan
     return first

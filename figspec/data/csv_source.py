@@ -6,10 +6,22 @@ from pathlib import Path
 
 import pandas as pd
 
+from figspec.data.columns import Plan, column_plan
 from figspec.errors import DataError, Loc, Problem
+from figspec.spec.sources import CsvSource
 
 
-def read_table(path: Path, wanted: dict[str, tuple[str, Loc]], file_loc: Loc) -> pd.DataFrame:
+def read(src: CsvSource, folder: Path, loc: Loc) -> tuple[pd.DataFrame, pd.DataFrame | None]:
+    """The canonical spike frame and trial frame (None without a trial table) of a CSV source."""
+    spike_plan, trial_plan = column_plan(src, loc)
+    spikes = read_table(folder / src.spikes, spike_plan, loc + ("spikes",))
+    trials = None
+    if trial_plan is not None and src.trials is not None:
+        trials = read_table(folder / src.trials, trial_plan, loc + ("trials",))
+    return spikes, trials
+
+
+def read_table(path: Path, wanted: Plan, file_loc: Loc) -> pd.DataFrame:
     """Read the columns of a CSV file, renamed to canonical names.
 
     Parameters

@@ -13,8 +13,8 @@ from typing import TYPE_CHECKING, Any, Callable
 import numpy as np
 import pandas as pd
 
-from figspec.draw.context import DrawContext
-from figspec.draw.scales import apply_shared, apply_ticks
+from figspec.draw.context import DrawContext, Labels
+from figspec.draw.scales import Limits, apply_scales, apply_ticks, shared_scales
 from figspec.draw.shading import level_appearance, mark_stimulus, stimulus_key
 from figspec.spec.models import FigureFile
 
@@ -22,25 +22,26 @@ if TYPE_CHECKING:
     from matplotlib.figure import Figure
 
 MM_PER_INCH = 25.4
-TIME_LABEL = "Time from stimulus onset (ms)"
 
 
 @dataclass(frozen=True)
 class PanelPlan:
     """What one panel needs to be drawn.
 
-    ``groups`` are the repeat values in display order (levels or units) and ``group_labels``
-    their row or column labels; both are empty for a panel drawn in one axes.
+    ``labels`` are the kind's defaults with the spec's own title and labels applied;
+    ``limits`` its data limits per axis (from its tables, for shared scales). ``groups`` are
+    the repeat values in display order (levels or units) and ``group_labels`` their row or
+    column labels; both are empty for a panel drawn in one axes.
     """
 
     panel: Any
     tables: Any
     stimulus: pd.DataFrame | None
     draw: Callable
-    title: str
+    labels: Labels
+    limits: Limits
     groups: list
     group_labels: list[str]
-    y_label: str | None = None
 
 
 def compose(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> "Figure":
@@ -56,6 +57,7 @@ def compose(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> "Figu
                             height_ratios=layout.heights if layout else None)
     cells = [p.panel.cell if layout else (1, i + 1) for i, p in enumerate(plans)]
     axes_of: dict[str, list] = {}
+    scales = shared_scales(spec.shared, {p.panel.name: p.limits for p in plans})
     appearance = _appearance(spec, plans, ctx)
     labelled_rows: set[tuple] = set()
     for i in sorted(range(len(plans)), key=lambda k: (cells[k][0], cells[k][1])):
@@ -64,8 +66,8 @@ def compose(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> "Figu
         sub = fig.add_subfigure(grid[r - 1:r - 1 + h, c - 1:c - 1 + w])
         sub.set_gid(plan.panel.name)                 # findings and tests name the panel by it
         axes_of[plan.panel.name] = _draw_panel(sub, plan, spec, ctx, appearance, labelled_rows, (r, h))
-    for group in spec.shared:
-        apply_shared([ax for name in group.panels for ax in axes_of[name]], group)
+    for plan in plans:
+        apply_scales(axes_of[plan.panel.name], scales.get(plan.panel.name, {}))
     for plan in plans:
         apply_ticks(axes_of[plan.panel.name], plan.panel)
     if layout and layout.letters:
@@ -99,12 +101,13 @@ def _draw_panel(sub, plan: PanelPlan, spec: FigureFile, ctx: DrawContext, appear
     if plan.stimulus is not None:
         _mark(plan, target, spec, ctx, appearance)
     plan.draw(target, plan.tables, panel, ctx)
+    labels = plan.labels
     if arrange == "rows":
-        axes[0].set_title(plan.title)
-        axes[-1].set_xlabel(panel.x_label or TIME_LABEL)
+        axes[0].set_title(labels.title)
+        axes[-1].set_xlabel(labels.x)
         for ax in axes[:-1]:
             ax.tick_params(labelbottom=False)
-        y_label = None if getattr(panel, "scale_bars", False) else plan.y_label
+        y_label = None if panel.scale_bars else labels.y
         key = (row_band, tuple(plan.groups))
         if key not in labelled_rows:          # only the leftmost repeated panel of a row band
             labelled_rows.add(key)
@@ -113,21 +116,21 @@ def _draw_panel(sub, plan: PanelPlan, spec: FigureFile, ctx: DrawContext, appear
         if y_label:
             sub.supylabel(y_label, fontsize=ctx.style.font.body_pt)
     elif arrange == "columns":
-        sub.suptitle(plan.title, fontsize=ctx.style.font.title_pt)
+        sub.suptitle(labels.title, fontsize=ctx.style.font.title_pt)
         for ax, text in zip(axes, plan.group_labels):
             ax.set_title(text.replace("\n", ", "), fontsize=ctx.style.font.body_pt)
-        sub.supxlabel(panel.x_label or TIME_LABEL, fontsize=ctx.style.font.body_pt)
-        if plan.y_label:
-            axes[0].set_ylabel(plan.y_label)
+        sub.supxlabel(labels.x, fontsize=ctx.style.font.body_pt)
+        if labels.y:
+            axes[0].set_ylabel(labels.y)
         for ax in axes[1:]:
             ax.tick_params(labelleft=False)
     else:
-        axes[0].set_title(plan.title)
-        if plan.stimulus is not None:
-            axes[0].set_xlabel(panel.x_label or TIME_LABEL)
-            if plan.y_label:
-                axes[0].set_ylabel(plan.y_label)
-    if getattr(panel, "scale_bars", False):
+        axes[0].set_title(labels.title)
+        if labels.x:
+            axes[0].set_xlabel(labels.x)
+        if labels.y:
+            axes[0].set_ylabel(labels.y)
+    if plan.stimulus is not None and panel.scale_bars:
         from figspec.draw.scalebars import draw_scale_bars
 
         draw_scale_bars(axes, plan, ctx)

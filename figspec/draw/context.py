@@ -50,3 +50,14 @@ def styled(style: Style) -> Iterator[None]:
         mpl.rcdefaults()
         mpl.rcParams.update(style.rc())
         yield
+
+
+@dataclass(frozen=True)
+class Labels:
+    """A panel kind's default title and axis labels (the spec's own win), and the unit of its
+    y values (for a scale bar), from its tables."""
+
+    title: str
+    x: str | None = None
+    y: str | None = None
+    y_unit: str | None = None

@@ -8,12 +8,15 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
-from figspec.draw.context import DrawContext, group_key
+from figspec.draw.colours import category_gid, unit_colours
+from figspec.draw.context import DrawContext, Labels, group_key
+from figspec.spec.models import LevelSpec
 from figspec.spec.panels import PsthPanel
 
 if TYPE_CHECKING:
     from matplotlib.axes import Axes
 
+TIME_LABEL = "Time from stimulus onset (ms)"
 RATE_LABELS = {"spikes/s": "Rate (spikes/s)", "spikes/trial": "Spikes/trial per bin",
                "spikes": "Spikes per bin", "SD from baseline": "Rate (z-score)"}
 
@@ -39,7 +42,7 @@ def _bands(table: pd.DataFrame, panel: PsthPanel) -> tuple[pd.Series, pd.Series]
     return lower, upper
 
 
-def draw_psth(target, table: pd.DataFrame, panel: PsthPanel, ctx: DrawContext) -> None:
+def draw(target, table: pd.DataFrame, panel: PsthPanel, ctx: DrawContext) -> None:
     """Draw the rate table: into ``{group: axes}`` (one filled step outline per axes, with a
     SEM band for a population), or into one axes when the panel is overlaid.
 
@@ -47,7 +50,7 @@ def draw_psth(target, table: pd.DataFrame, panel: PsthPanel, ctx: DrawContext) -
     largest value of any repeat rounded up, so a weak response looks weak next to a strong one.
     """
     lower, upper = _bands(table, panel)
-    shared = _limits(lower, upper, panel)
+    shared = limits(panel, table)["y"]
     if panel.arrange == "overlay":
         _overlay(target, table, panel, ctx, shared)
         return
@@ -81,12 +84,11 @@ def _overlay(ax: "Axes", table: pd.DataFrame, panel: PsthPanel, ctx: DrawContext
         norm = mpl.colors.Normalize(values.min(), values.max() if values.max() > values.min() else values.min() + 1)
         colours = {g: cmap(0.15 + 0.85 * norm(g)) for g in groups}     # skip the palest end
     else:
-        palette = ctx.style.palette.units
-        colours = {g: palette[i % len(palette)] for i, g in enumerate(groups)}
+        colours = unit_colours(groups, ctx.style)
     for value, rows in table.groupby(panel.repeat, sort=False):
         edges = np.r_[rows["bin_start_ms"].to_numpy(), rows["bin_stop_ms"].to_numpy()[-1]]
         label = ctx.levels.label(value) if panel.repeat == "level" else str(value)
-        gid = f"rate:{value}" if panel.repeat == "level" else f"unit_rate:{value}"
+        gid = f"rate:{value}" if panel.repeat == "level" else category_gid(value)
         ax.stairs(rows["rate"].to_numpy(), edges, color=colours[value], linewidth=ctx.style.summary.line_pt,
                   label=label, gid=gid)
     ax.set_ylim(*limits)
@@ -116,6 +118,12 @@ def _limits(lower: pd.Series, upper: pd.Series, panel: PsthPanel) -> tuple[float
     return bottom, panel.y_max or nice_top(float(np.nanmax(upper)) if len(upper) else 1.0)
 
 
-def rate_label(table: pd.DataFrame, panel: PsthPanel) -> str:
-    """The y-axis label: the panel's own, or one naming the measure and its unit."""
-    return panel.y_label or RATE_LABELS[str(table["rate_unit"].iloc[0])]
+def limits(panel: PsthPanel, table: pd.DataFrame) -> dict[str, tuple[float, float]]:
+    """The panel's data limits: its window on x, and on y the range every repeat shares."""
+    return {"x": tuple(panel.window_ms), "y": _limits(*_bands(table, panel), panel)}
+
+
+def labels(panel: PsthPanel, table: pd.DataFrame, levels: LevelSpec) -> Labels:
+    """Default title, and a y label naming the measure and its unit."""
+    unit = str(table["rate_unit"].iloc[0])
+    return Labels("Firing rate", TIME_LABEL, RATE_LABELS[unit], unit)

@@ -2,19 +2,16 @@
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING
-
 import numpy as np
 import pandas as pd
 
+from figspec.draw.context import DrawContext, Labels, group_key
+from figspec.draw.psth import TIME_LABEL
+from figspec.spec.models import LevelSpec
 from figspec.spec.panels import RasterPanel
-from figspec.draw.context import DrawContext, group_key
-
-if TYPE_CHECKING:
-    pass
 
 
-def draw_raster(axes: dict, table: pd.DataFrame, panel: RasterPanel, ctx: DrawContext) -> None:
+def draw(axes: dict, table: pd.DataFrame, panel: RasterPanel, ctx: DrawContext) -> None:
     """Draw each level's (or unit's) rows of the raster table into its axes.
 
     Trial 0 is the top line. Every trial presented has a line, so trials with no spike stay
@@ -30,7 +27,7 @@ def draw_raster(axes: dict, table: pd.DataFrame, panel: RasterPanel, ctx: DrawCo
         ax = axes[group_key(panel.repeat, groups[lo])]
         rows = table["row"].to_numpy()[lo:hi]
         times = table["time_ms"].to_numpy()[lo:hi]
-        n_trials = int(rows.max()) + 1
+        n_trials = int(table["n_trials"].iloc[lo])
         spikes = ~np.isnan(times)
         x, y = times[spikes], rows[spikes].astype(float)
         segments = np.empty((x.size, 2, 2))
@@ -44,3 +41,12 @@ def draw_raster(axes: dict, table: pd.DataFrame, panel: RasterPanel, ctx: DrawCo
         ax.set_xlim(*panel.window_ms)
         ax.set_yticks([])
         ax.spines["left"].set_visible(False)
+
+
+def labels(panel: RasterPanel, table: pd.DataFrame, levels: LevelSpec) -> Labels:
+    return Labels("Spikes", TIME_LABEL)
+
+
+def limits(panel: RasterPanel, table: pd.DataFrame) -> dict[str, tuple[float, float]]:
+    """Only time is shareable: each repeat's y extent is its own number of trials."""
+    return {"x": tuple(panel.window_ms)}

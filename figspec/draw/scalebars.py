@@ -12,9 +12,10 @@ def bar_length(span: float) -> float:
 
 
 def draw_scale_bars(axes: list, plan, ctx) -> None:
-    """Hide the axes' spines and ticks and draw a time bar (``time_bar_ms``) and, for a rate
-    panel, a rate bar (``rate_bar``) at the lower right of the last axes, labelled with length
-    and unit. Bars are in data units, so they measure exactly what they say."""
+    """Hide the axes' spines and ticks and draw a time bar (``time_bar_ms``) and, when the
+    panel's y values have a unit (a rate), a y bar (``rate_bar``) at the lower right of the
+    last axes, labelled with length and unit. Bars are in data units, so they measure exactly
+    what they say."""
     panel = plan.panel
     width = ctx.style.scale_bar.line_pt
     for ax in axes:
@@ -32,9 +33,9 @@ def draw_scale_bars(axes: list, plan, ctx) -> None:
             solid_capstyle="butt", gid="time_bar")
     ax.text(x1 - time_bar / 2, below, f"{time_bar:g} ms", ha="center", va="top", gid="time_bar_label",
             fontsize=ctx.style.font.tick_pt)
-    if panel.kind == "psth":
-        unit = str(plan.tables["rate_unit"].iloc[0]) if "rate_unit" in plan.tables else ""
-        rate_bar = panel.rate_bar or bar_length(y1 - y0)
+    unit = plan.labels.y_unit
+    if unit:                                     # a y bar only where y has a unit (not trial rows)
+        rate_bar = getattr(panel, "rate_bar", None) or bar_length(y1 - y0)
         right = x1 + 0.02 * (x1 - x0)
         ax.plot([right, right], [y0, y0 + rate_bar], color="black", linewidth=width, clip_on=False,
                 solid_capstyle="butt", gid="rate_bar")

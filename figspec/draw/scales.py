@@ -1,15 +1,17 @@
-"""Shared scales across groups of axes, and tick positions or steps per axis."""
+"""Shared scales across groups of panels, computed from the panels' tables before anything is
+drawn, and tick positions or steps per axis."""
 
 from __future__ import annotations
 
 from typing import TYPE_CHECKING
 
-import numpy as np
-
 from figspec.spec.layout import SharedGroup
 
 if TYPE_CHECKING:
     from matplotlib.axes import Axes
+
+Limits = dict[str, tuple[float, float]]            # axis ("x", "y") -> (low, high)
+Scale = tuple[float, float, float | None]          # (low, high, tick step or None)
 
 
 def rounded_limits(low: float, high: float) -> tuple[float, float, float]:
@@ -24,27 +26,39 @@ def rounded_limits(low: float, high: float) -> tuple[float, float, float]:
     return lo, hi, float(ticks[1] - ticks[0])
 
 
-def apply_shared(axes: list["Axes"], group: SharedGroup) -> None:
-    """Give every axes of the group the same limits on the group's axis (or axes): the fixed
-    ``limits``, or the union of the members' current limits, rounded. A ``step`` sets ticks."""
+def shared_scales(groups: list[SharedGroup], data_limits: dict[str, Limits]) -> dict[str, dict[str, Scale]]:
+    """Per panel name and axis, the scale its ``[[shared]]`` group imposes: the group's fixed
+    ``limits``, or the union of its members' data limits (rounded on y). A member whose kind
+    has no shareable extent on an axis (a raster's trial rows) keeps its own."""
+    out: dict[str, dict[str, Scale]] = {}
+    for group in groups:
+        for axis in ("x", "y") if group.axis == "both" else (group.axis,):
+            members = [name for name in group.panels if axis in data_limits[name] or group.limits]
+            if not members:
+                continue
+            if group.limits is not None:
+                lo, hi, step = group.limits[0], group.limits[1], None
+            else:
+                spans = [data_limits[name][axis] for name in members if axis in data_limits[name]]
+                lo, hi, step = min(s[0] for s in spans), max(s[1] for s in spans), None
+                if axis == "y":
+                    lo, hi, step = rounded_limits(lo, hi)
+            for name in members:
+                out.setdefault(name, {})[axis] = (lo, hi, group.step or step)
+    return out
+
+
+def apply_scales(axes: list["Axes"], scales: dict[str, Scale]) -> None:
+    """Set each axis' shared limits (keeping an inverted axis inverted) and tick step."""
     from matplotlib.ticker import MultipleLocator
 
-    for axis in ("x", "y") if group.axis == "both" else (group.axis,):
-        get = "get_xlim" if axis == "x" else "get_ylim"
-        spans = np.array([sorted(getattr(ax, get)()) for ax in axes])
-        flipped = [getattr(ax, get)()[0] > getattr(ax, get)()[1] for ax in axes]
-        if group.limits is not None:
-            lo, hi, step = group.limits[0], group.limits[1], None
-        else:
-            lo, hi, step = spans[:, 0].min(), spans[:, 1].max(), None
-            if axis == "y":
-                lo, hi, step = rounded_limits(lo, hi)
-        for ax, flip in zip(axes, flipped):
-            limits = (hi, lo) if flip else (lo, hi)
-            (ax.set_xlim if axis == "x" else ax.set_ylim)(*limits)
-            target = ax.xaxis if axis == "x" else ax.yaxis
-            if group.step or step:
-                target.set_major_locator(MultipleLocator(group.step or step))
+    for axis, (lo, hi, step) in scales.items():
+        for ax in axes:
+            get, put = (ax.get_xlim, ax.set_xlim) if axis == "x" else (ax.get_ylim, ax.set_ylim)
+            current = get()
+            put(*((hi, lo) if current[0] > current[1] else (lo, hi)))
+            if step:
+                (ax.xaxis if axis == "x" else ax.yaxis).set_major_locator(MultipleLocator(step))
 
 
 def apply_ticks(axes: list["Axes"], panel) -> None:
@@ -52,7 +66,7 @@ def apply_ticks(axes: list["Axes"], panel) -> None:
     from matplotlib.ticker import FixedLocator, MultipleLocator
 
     for axis in ("x", "y"):
-        ticks, step = getattr(panel, f"{axis}_ticks", None), getattr(panel, f"{axis}_step", None)
+        ticks, step = getattr(panel, f"{axis}_ticks"), getattr(panel, f"{axis}_step")
         if ticks is None and step is None:
             continue
         for ax in axes:

@@ -1,4 +1,4 @@
-"""Colour-vision deficiency simulation and colour distances, for preflight.
+"""Colour-vision deficiency simulation and colour distances, for the journal check.
 
 Simulation after Machado, Oliveira & Fernandes (2009), IEEE TVCG 15(6):1291-1298, with the
 authors' tabulated matrices for severity 1.0, applied to linear RGB (sRGB decoded by IEC

@@ -20,19 +20,45 @@ class ImageResult:
     message: str
 
 
-def rms_difference(expected: Path, actual: Path, tolerance: float) -> ImageResult:
-    """Compare two PNGs; on a difference matplotlib writes ``<actual>-failed-diff.png``."""
-    from matplotlib.testing.compare import compare_images
-    from matplotlib.testing.exceptions import ImageComparisonFailure
+def _rgb(data: bytes) -> np.ndarray:
+    from PIL import Image
 
-    try:
-        result = compare_images(str(expected), str(actual), tol=tolerance, in_decorator=True)
-    except ImageComparisonFailure as err:     # different sizes
-        return ImageResult(actual.stem, None, False, str(err).split("\n")[0])
-    if result is None:
-        return ImageResult(actual.stem, 0.0, True, "same within tolerance")
-    return ImageResult(actual.stem, float(result["rms"]), False,
-                       f"RMS {result['rms']:.2f} > tolerance {tolerance:g}")
+    return np.asarray(Image.open(io.BytesIO(data)).convert("RGB"), dtype=float)
+
+
+def rms(expected: np.ndarray, actual: np.ndarray) -> float:
+    """Root mean square difference over every pixel and RGB channel, on the 0-255 scale."""
+    return float(np.sqrt(np.mean((expected - actual) ** 2)))
+
+
+def difference_image(expected: np.ndarray, actual: np.ndarray) -> bytes:
+    """The absolute difference of two same-sized images, stretched so the largest difference is
+    white (black where equal), as PNG."""
+    from PIL import Image
+
+    diff = np.abs(expected - actual)
+    top = diff.max()
+    scaled = (diff * (255.0 / top) if top > 0 else diff).astype(np.uint8)
+    buffer = io.BytesIO()
+    Image.fromarray(scaled, "RGB").save(buffer, format="PNG")
+    return buffer.getvalue()
+
+
+def rms_difference(expected: Path, actual: Path, tolerance: float,
+                   difference: Path | None = None) -> ImageResult:
+    """Compare two PNGs by :func:`rms`; when they differ and ``difference`` is given, write the
+    difference image there."""
+    a, b = _rgb(Path(expected).read_bytes()), _rgb(Path(actual).read_bytes())
+    name = Path(actual).name.split(".")[0]
+    if a.shape != b.shape:
+        return ImageResult(name, None, False, f"image sizes differ: {a.shape[1]}x{a.shape[0]} px "
+                                              f"(baseline) and {b.shape[1]}x{b.shape[0]} px (new)")
+    value = rms(a, b)
+    if value <= tolerance:
+        return ImageResult(name, value, True, f"RMS {value:.2f} <= tolerance {tolerance:g}")
+    if difference is not None:
+        Path(difference).write_bytes(difference_image(a, b))
+    return ImageResult(name, value, False, f"RMS {value:.2f} > tolerance {tolerance:g}")
 
 
 def side_by_side(old_png: bytes, new_png: bytes) -> tuple[bytes, bytes]:

@@ -1,4 +1,4 @@
-"""Write figures and source-data tables: atomically, with no dates, byte-stable."""
+"""Write figures and source-data tables as one set, with no dates, byte-stable."""
 
 from __future__ import annotations
 
@@ -7,26 +7,15 @@ import os
 import re
 import tempfile
 from pathlib import Path
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Iterable
 
 import pandas as pd
 
+from figspec.draw.context import styled
+from figspec.spec.style import Style
+
 if TYPE_CHECKING:
     from matplotlib.figure import Figure
-
-
-def write_atomic(path: Path, data: bytes) -> None:
-    """Write ``data`` to a temporary file beside ``path`` and rename it into place, so a
-    failed render never leaves a truncated file and the previous file survives until then."""
-    path.parent.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
-    try:
-        with os.fdopen(fd, "wb") as handle:
-            handle.write(data)
-        os.replace(tmp, path)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
 
 
 def figure_bytes(fig: "Figure", fmt: str, dpi: int, software: str, provenance: str = "") -> bytes:
@@ -42,6 +31,14 @@ def figure_bytes(fig: "Figure", fmt: str, dpi: int, software: str, provenance: s
     fig.savefig(buffer, format=fmt, dpi=dpi, metadata=metadata)
     data = buffer.getvalue()
     return stable_svg_ids(data) if fmt == "svg" else data
+
+
+def figure_files(fig: "Figure", style: Style, formats: Iterable[str], dpi: int, software: str,
+                 provenance: str = "") -> dict[str, bytes]:
+    """``{format: bytes}`` of a drawn figure, rendered inside its style's context (tick labels
+    and font embedding are settled when the file is written)."""
+    with styled(style):
+        return {fmt: figure_bytes(fig, fmt, dpi, software, provenance) for fmt in formats}
 
 
 CLIP_ID = re.compile(rb"\bp[0-9a-f]{10}\b")

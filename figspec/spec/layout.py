@@ -11,7 +11,7 @@ from typing import Annotated, Literal
 from pydantic import Field, model_validator
 
 from figspec.errors import Problem
-from figspec.spec.types import Frozen
+from figspec.spec.fields import Frozen
 
 Count = Annotated[int, Field(ge=1, le=50)]
 Ratio = Annotated[float, Field(gt=0, le=100)]
@@ -34,6 +34,22 @@ class LayoutSpec(Frozen):
         if self.heights is not None and len(self.heights) != self.rows:
             raise ValueError(f"heights needs one number per row ({self.rows}), got {len(self.heights)}")
         return self
+
+
+def reading_order(layout: LayoutSpec | None, panels: list) -> list[int]:
+    """Indices of ``panels`` in reading order: by grid cell (row, then column); without a
+    layout, the order of the spec (one column each)."""
+    if layout is None:
+        return list(range(len(panels)))
+    return sorted(range(len(panels)), key=lambda i: tuple(panels[i].cell or (0, 0)))
+
+
+def panel_letters(layout: LayoutSpec | None, panels: list) -> dict[str, str]:
+    """The letter drawn beside each panel (``a``, ``b`` ... in reading order), when the layout
+    draws letters; empty otherwise."""
+    if layout is None or not layout.letters:
+        return {}
+    return {panels[i].name: "abcdefghijklmnopqrstuvwxyz"[n] for n, i in enumerate(reading_order(layout, panels))}
 
 
 class SharedGroup(Frozen):

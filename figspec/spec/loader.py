@@ -115,23 +115,46 @@ def _unwrap(tp: Any) -> Any:
             return tp
 
 
-def _tagged_member(tp: Any, tag: Any) -> type[BaseModel] | None:
-    """The member of a union of models whose ``kind`` literal equals ``tag``."""
-    if typing.get_origin(tp) not in (typing.Union, types.UnionType):
-        return None
-    for member in typing.get_args(tp):
-        if isinstance(member, type) and issubclass(member, BaseModel) and "kind" in member.model_fields:
-            if tag in typing.get_args(member.model_fields["kind"].annotation):
-                return member
+TAG_KEYS = ("kind", "format")   # the keys that pick a member of a union of models
+
+
+def _members(tp: Any) -> list[type[BaseModel]]:
+    """The models of a union (each possibly wrapped in Annotated), or the model itself."""
+    args = typing.get_args(tp) if typing.get_origin(tp) in (typing.Union, types.UnionType) else (tp,)
+    out = []
+    for member in args:
+        while typing.get_origin(member) is typing.Annotated:
+            member = typing.get_args(member)[0]
+        if isinstance(member, type) and issubclass(member, BaseModel):
+            out.append(member)
+    return out
+
+
+def _tag(model: type[BaseModel]) -> tuple[str, tuple] | None:
+    """(tag key, tag values) of a union member model, e.g. ("kind", ("raster",))."""
+    for key in TAG_KEYS:
+        if key in model.model_fields:
+            return key, typing.get_args(model.model_fields[key].annotation)
     return None
 
 
-def _union_tags(tp: Any) -> list[str]:
-    tags: list[str] = []
-    for member in typing.get_args(_unwrap(tp)):
-        if isinstance(member, type) and issubclass(member, BaseModel) and "kind" in member.model_fields:
-            tags += list(typing.get_args(member.model_fields["kind"].annotation))
-    return tags
+def _tagged_member(tp: Any, tag: Any) -> type[BaseModel] | None:
+    """The member of a tagged union whose tag literal equals ``tag`` (pydantic puts the tag in
+    error locations; the user never wrote it as a key)."""
+    for member in _members(tp):
+        found = _tag(member)
+        if found is not None and tag in found[1]:
+            return member
+    return None
+
+
+def _union_tags(tp: Any) -> tuple[str, list[str]]:
+    key, tags = "kind", []
+    for member in _members(_unwrap(tp)):
+        found = _tag(member)
+        if found is not None:
+            key, tags = found[0], tags + list(found[1])
+    return key, tags
 
 
 def walk_loc(root: type[BaseModel], loc: Loc) -> tuple[Loc, type[BaseModel] | None, Any]:
@@ -145,7 +168,7 @@ def walk_loc(root: type[BaseModel], loc: Loc) -> tuple[Loc, type[BaseModel] | No
     path: list[str | int] = []
     for item in loc:
         tp = _unwrap(tp)
-        member = _tagged_member(tp, item)
+        member = _tagged_member(tp, item) if isinstance(item, str) else None
         if member is not None:
             tp = member
             continue
@@ -186,13 +209,14 @@ def problem_from_pydantic(root: type[BaseModel], error: dict[str, Any]) -> Probl
         hint = f"; did you mean {close[0]!r}?" if close else f"; allowed keys: {', '.join(allowed)}"
         return Problem(f"unknown key{hint}", path)
     if kind == "union_tag_invalid":
-        tags = _union_tags(tp)
+        key, tags = _union_tags(tp)
         got = error.get("ctx", {}).get("tag", "")
         close = difflib.get_close_matches(str(got), tags, n=1, cutoff=0.5)
         hint = f"; did you mean {close[0]!r}?" if close else ""
-        return Problem(f"kind must be one of {', '.join(map(repr, tags))}{hint}", path + ("kind",), repr(got))
+        return Problem(f"{key} must be one of {', '.join(map(repr, tags))}{hint}", path + (key,), repr(got))
     if kind == "union_tag_not_found":
-        return Problem(f"missing key 'kind' (one of {', '.join(map(repr, _union_tags(tp)))})", path)
+        key, tags = _union_tags(tp)
+        return Problem(f"missing key {key!r} (one of {', '.join(map(repr, tags))})", path)
     if kind == "missing":
         return Problem("missing required key", path)
     message = error["msg"]

@@ -14,8 +14,10 @@ from pydantic import Field, model_validator
 
 from figspec.errors import Problem
 from figspec.spec.layout import LayoutSpec, SharedGroup, grid_problems
-from figspec.spec.panels import Panel, PanelBase
-from figspec.spec.types import Fraction, Frozen, Millimetres, Name
+from figspec.spec.fields import Fraction, Frozen, Millimetres, Name
+from figspec.spec.panel_base import PanelBase
+from figspec.spec.panels import Panel
+from figspec.spec.sources import Source
 
 Format = Literal["svg", "pdf", "png"]
 ALL_FORMATS: tuple[Format, ...] = ("svg", "pdf", "png")
@@ -30,7 +32,7 @@ class FigureSpec(Frozen):
     formats: list[Format] = Field(default_factory=lambda: list(ALL_FORMATS), min_length=1)
     png_dpi: Annotated[int, Field(ge=72, le=1200)] = 300
     style: str = "default"
-    profile: str | None = None
+    journal: str | None = None
 
 
 class LevelSpec(Frozen):
@@ -95,56 +97,6 @@ class StimulusSpec(Frozen):
         return self
 
 
-class SpikeColumns(Frozen):
-    """Column names in the spike table (one row per spike)."""
-
-    unit: str = "unit"
-    trial: str = "trial"
-    time: str = "time"
-    level: str | None = None
-
-
-class TrialColumns(Frozen):
-    """Column names in the trial table (one row per presented trial).
-
-    ``onset`` names the column spikes are aligned to; without it spike times are taken as
-    already relative to stimulus onset. ``unit`` is for trials that belong to one unit each.
-    """
-
-    trial: str = "trial"
-    level: str = "level"
-    onset: str | None = None
-    offset: str | None = None
-    unit: str | None = None
-
-
-class SourceSpec(Frozen):
-    """``[sources.NAME]``: one data set, a spike table and (preferably) a trial table.
-
-    ``unit_name`` is for a spike table of one unit without a unit column.
-    """
-
-    format: Literal["csv"] = "csv"
-    spikes: str
-    trials: str | None = None
-    time_unit: Literal["s", "ms"] = "s"
-    spike_columns: SpikeColumns = SpikeColumns()
-    trial_columns: TrialColumns = TrialColumns()
-    trials_per_level: Annotated[int, Field(gt=0)] | dict[str, Annotated[int, Field(gt=0)]] | None = None
-    unit_name: str | None = None
-
-    @model_validator(mode="after")
-    def _trials_described(self) -> "SourceSpec":
-        if self.trials is not None and self.trials_per_level is not None:
-            raise ValueError("give either a trial table (trials) or trials_per_level, not both")
-        if self.trial_columns.offset is not None and self.trial_columns.onset is None:
-            raise ValueError("trial_columns.offset needs trial_columns.onset (offsets are taken relative to it)")
-        if self.trials is None and self.spike_columns.level is None:
-            raise ValueError("without a trial table the spike table must carry the level: "
-                             "set spike_columns.level")
-        return self
-
-
 class FigureFile(Frozen):
     """The whole spec file."""
 
@@ -152,7 +104,7 @@ class FigureFile(Frozen):
     levels: LevelSpec = LevelSpec()
     stimulus: StimulusSpec
     layout: LayoutSpec | None = None
-    sources: dict[Name, SourceSpec] = Field(min_length=1)
+    sources: dict[Name, Source] = Field(min_length=1)
     panels: list[Panel] = Field(min_length=1)
     shared: list[SharedGroup] = Field(default_factory=list)
     style: dict[str, Any] | None = None
@@ -180,15 +132,13 @@ def cross_check(spec: FigureFile) -> list[Problem]:
         elif source_name(spec, panel) is None:
             problems.append(Problem(f"several sources exist, so the panel must name one of {sorted(spec.sources)}",
                                     ("panels", i)))
-        if getattr(panel, "units", None) is not None and panel.unit is not None:
+        if panel.units is not None and panel.unit is not None:
             problems.append(Problem("give either unit or units, not both", ("panels", i, "units")))
-        if getattr(panel, "fit", "none") != "none" and spec.levels.scale is None:
-            problems.append(Problem(f"a {panel.fit} fit needs the level's scale: set levels.scale to "
+        if panel.fitted_model() is not None and spec.levels.scale is None:
+            problems.append(Problem(f"a {panel.fitted_model()} fit needs the level's scale: set levels.scale to "
                                     "'pressure_db', 'power_db' or 'linear'", ("panels", i, "fit")))
         src = spec.sources.get(source_name(spec, panel) or "")
-        if spec.stimulus.per_trial and src is not None and (
-            src.trials is None or src.trial_columns.onset is None or src.trial_columns.offset is None
-        ):
+        if spec.stimulus.per_trial and src is not None and not src.has_stimulus_window:
             problems.append(Problem("stimulus.per_trial needs a trial table with onset and offset columns "
                                     f"in source {source_name(spec, panel)!r}", ("stimulus", "per_trial")))
     problems += grid_problems(spec.layout, spec.panels, spec.shared)

@@ -1,7 +1,8 @@
 """Panel models, one per kind, joined in the discriminated union :data:`Panel`.
 
 Rows of level-repeated panels (raster, psth) are levels; summary panels (level_response,
-latency) draw one axes with level on x, one line per unit.
+latency) draw one axes with level on x, one line per unit. A new kind is one model here and
+one member of :data:`PANEL_MODELS`.
 """
 
 from __future__ import annotations
@@ -10,63 +11,13 @@ from typing import Annotated, Literal, Union
 
 from pydantic import Field, ValidationInfo, field_validator, model_validator
 
-from figspec.spec.types import Frozen, Name, PositiveMs, WindowMs
-
-Probability = Annotated[float, Field(gt=0, lt=1)]
-
-
-GridCell = tuple[Annotated[int, Field(ge=1)], Annotated[int, Field(ge=1)]]
-Step = Annotated[float, Field(gt=0)]
-
-
-class PanelBase(Frozen):
-    """Keys every panel kind has: what to draw from, where in the grid, labels and ticks."""
-
-    name: Name
-    source: str | None = None
-    unit: str | None = None
-    levels: list[float] | None = None
-    cell: GridCell | None = None
-    span: GridCell = (1, 1)
-    title: str | None = None
-    x_label: str | None = None
-    x_ticks: list[float] | None = None
-    x_step: Step | None = None
-    y_ticks: list[float] | None = None
-    y_step: Step | None = None
-
-    @model_validator(mode="after")
-    def _ticks(self) -> "PanelBase":
-        for axis in ("x", "y"):
-            if getattr(self, f"{axis}_ticks") is not None and getattr(self, f"{axis}_step") is not None:
-                raise ValueError(f"give {axis}_ticks or {axis}_step, not both")
-        return self
-
-
-class TimePanel(PanelBase):
-    """Panels with time on x, repeated per level (or per unit) down rows or across columns, or
-    overlaid in one axes. Scale bars can replace the axes."""
-
-    repeat: Literal["level", "unit"] = "level"
-    arrange: Literal["rows", "columns", "overlay"] = "rows"
-    window_ms: WindowMs = (-50.0, 150.0)
-    scale_bars: bool = False
-    time_bar_ms: Step | None = None
-
-    @model_validator(mode="after")
-    def _arrangement(self) -> "TimePanel":
-        if self.repeat == "unit" and not getattr(self, "units", None):
-            raise ValueError("repeat = 'unit' needs units = [...] naming the units to repeat over")
-        if self.repeat == "unit" and self.arrange != "overlay" and (self.levels is None or len(self.levels) != 1):
-            raise ValueError("one axes per unit shows one level: set levels = [L]")
-        return self
-
+from figspec.spec.fields import PositiveMs, WindowMs
+from figspec.spec.panel_base import PanelBase, Probability, Step, SummaryPanel, TimePanel
 
 class RasterPanel(TimePanel):
     """``kind = "raster"``: one tick per spike, one line per trial presented."""
 
     kind: Literal["raster"]
-    units: list[str] | None = Field(default=None, min_length=2)
 
     @model_validator(mode="after")
     def _no_overlay(self) -> "RasterPanel":
@@ -82,7 +33,6 @@ class PsthPanel(TimePanel):
     optionally averaged across ``units`` (population rate, mean +/- SEM)."""
 
     kind: Literal["psth"]
-    units: list[str] | None = Field(default=None, min_length=2)
     bin_ms: PositiveMs | Literal["auto"] = 5.0
     bin_search_ms: WindowMs = (1.0, 50.0)
     measure: Literal["spikes_per_s", "spikes_per_trial", "count", "z_score"] = "spikes_per_s"
@@ -122,26 +72,8 @@ class PsthPanel(TimePanel):
             raise ValueError("measure = 'z_score' needs pre-stimulus bins: start window_ms before 0")
         return self
 
-
-class SummaryPanel(PanelBase):
-    """Panels with level on x and one line per unit."""
-
-    units: list[str] | None = Field(default=None, min_length=1)
-    response_ms: WindowMs = (0.0, 50.0)
-    baseline_ms: WindowMs = (-50.0, 0.0)
-    level_axis: Literal["linear", "log"] = "linear"
-    confidence: Probability = 0.95
-    resamples: Annotated[int, Field(ge=200, le=100_000)] = 2000
-    seed: int = 0
-    y_label: str | None = None
-
-    @model_validator(mode="after")
-    def _windows(self) -> "SummaryPanel":
-        if self.response_ms[0] < 0:
-            raise ValueError(f"response_ms must start at or after stimulus onset (0 ms), got {list(self.response_ms)}")
-        if self.baseline_ms[1] > 0:
-            raise ValueError(f"baseline_ms must end by stimulus onset (0 ms), got {list(self.baseline_ms)}")
-        return self
+    def windows(self) -> dict[str, tuple[float, float]]:
+        return {"window_ms": self.window_ms} | ({"baseline_ms": self.baseline_ms} if self.baseline_ms else {})
 
 
 class LevelResponsePanel(SummaryPanel):
@@ -153,9 +85,12 @@ class LevelResponsePanel(SummaryPanel):
     subtract_baseline: bool = False
     error: Literal["sem", "bootstrap"] = "sem"
     test: Literal["wilcoxon", "none"] = "wilcoxon"
-    zero_method: Literal["wilcox", "pratt", "zsplit"] = "wilcox"
+    zero_differences: Literal["drop", "keep", "split"] = "drop"
     alpha: Probability = 0.05
     fit: Literal["none", "naka_rushton"] = "none"
+
+    def fitted_model(self) -> str | None:
+        return None if self.fit == "none" else self.fit
 
     @model_validator(mode="after")
     def _equal_windows(self) -> "LevelResponsePanel":
@@ -178,8 +113,12 @@ class LatencyPanel(SummaryPanel):
     surprise: Annotated[float, Field(gt=0, le=20)] = 3.0
     fit: Literal["none", "pieron"] = "none"
 
+    def fitted_model(self) -> str | None:
+        return None if self.fit == "none" else self.fit
 
-Panel = Annotated[Union[RasterPanel, PsthPanel, LevelResponsePanel, LatencyPanel],
-                  Field(discriminator="kind")]
+
+PANEL_MODELS = (RasterPanel, PsthPanel, LevelResponsePanel, LatencyPanel)
+
+Panel = Annotated[Union[PANEL_MODELS], Field(discriminator="kind")]
 
 FIT_PARAMETERS = {"naka_rushton": 4, "pieron": 3}

@@ -13,10 +13,9 @@ from typing import Annotated, Literal
 from pydantic import Field
 
 from figspec.errors import Problem, SpecError
-from figspec.spec.types import Colour, Fraction, Frozen, Points
+from figspec.spec.fields import Colour, Fraction, Frozen, Points
 
-PACKAGE_STYLES = Path(__file__).resolve().parents[1] / "_styles"   # in an installed wheel
-SOURCE_STYLES = Path(__file__).resolve().parents[2] / "styles"     # in a source checkout
+BUILTIN_STYLES = Path(__file__).resolve().parents[1] / "styles"   # shipped inside the package
 
 
 class FontStyle(Frozen):
@@ -132,22 +131,30 @@ class Style(Frozen):
         }
 
 
+def lab_style_folders(folder: Path | None) -> list[Path]:
+    """Where a lab's own styles are looked for, first match winning: ``styles/`` beside the
+    spec, then ``styles/`` one folder up (a project with ``specs/`` and ``styles/`` side by side)."""
+    if folder is None:
+        return []
+    return [folder / "styles", folder.parent / "styles"]
+
+
 def style_path(name: str, folder: Path | None = None) -> Path:
     """Where the style ``name`` lives: a path to a .toml file (relative to ``folder``), or a name
-    looked up in ``styles/`` under ``folder`` (a spec's folder), in ``folder`` itself (a style
-    extending a sibling), then figspec's own styles."""
+    looked up in the lab's style folders (:func:`lab_style_folders`), in ``folder`` itself (a
+    style extending a sibling), then among figspec's built-in styles."""
     if name.endswith(".toml"):
         return (folder or Path.cwd()) / name
-    places = ([folder / "styles", folder] if folder else []) + [SOURCE_STYLES, PACKAGE_STYLES]
+    places = lab_style_folders(folder) + ([folder] if folder else []) + [BUILTIN_STYLES]
     for place in places:
         candidate = place / f"{name}.toml"
         if candidate.is_file():
             return candidate
-    raise SpecError(Problem(f"no style named {name!r} (looked in styles/ beside the spec and in "
-                            "figspec's own styles)", ("figure", "style"), repr(name)))
+    raise SpecError(Problem(f"no style named {name!r} (looked in styles/ beside the spec, one folder up, "
+                            f"and among figspec's own: {', '.join(builtin_styles())})", ("figure", "style"),
+                            repr(name)))
 
 
 def builtin_styles() -> list[str]:
     """Names of figspec's own styles."""
-    folder = SOURCE_STYLES if SOURCE_STYLES.is_dir() else PACKAGE_STYLES
-    return sorted(p.stem for p in folder.glob("*.toml"))
+    return sorted(p.stem for p in BUILTIN_STYLES.glob("*.toml"))

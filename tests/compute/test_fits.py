@@ -2,7 +2,7 @@ import numpy as np
 import pytest
 
 from figspec.compute.fits import derived_naka_rushton, fit
-from figspec.compute.levels import to_linear
+from figspec.compute.decibels import to_linear
 
 LEVELS = np.arange(0.0, 81.0, 10.0)
 

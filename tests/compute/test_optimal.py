@@ -2,10 +2,9 @@ import numpy as np
 import pytest
 
 from figspec.compute.optimal import bin_cost, choose_bandwidth, choose_bin_width, kernel_cost
-from figspec.compute.psth import psth_table
 from figspec.errors import DataError
 
-from helpers import build_recording, panel
+from helpers import build_recording, panel, compute_panel
 
 
 def test_bin_cost_hand_example():
@@ -39,7 +38,7 @@ def test_auto_bin_with_too_few_spikes_is_a_data_error_at_its_key():
     trials = [(i, 40, float(i), float(i) + 0.05) for i in range(1, 3)]
     rec = build_recording([("u1", 1, 1.01), ("u1", 2, 2.1)], trials)
     with pytest.raises(DataError) as info:
-        psth_table(rec, panel("psth", bin_ms="auto", window_ms=(-50, 150)))
+        compute_panel(rec, panel("psth", bin_ms="auto", window_ms=(-50, 150)))
     assert info.value.problems[0].loc == ("bin_ms",)
     assert "no minimum" in info.value.problems[0].message
 

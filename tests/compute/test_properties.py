@@ -5,13 +5,9 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from figspec.compute.latency import latency_points
-from figspec.compute.psth import psth_table
-from figspec.compute.raster import raster_table
-from figspec.compute.response import response_points
 from figspec.spec.panels import LatencyPanel, LevelResponsePanel
 
-from helpers import build_recording, panel
+from helpers import build_recording, panel, compute_panel
 
 trains = st.lists(st.lists(st.floats(-0.1, 0.2, allow_nan=False), max_size=12), min_size=2, max_size=8)
 
@@ -24,12 +20,12 @@ def test_row_order_of_the_spike_table_changes_no_result(spike_lists, shuffler):
     shuffled = spikes[:]
     shuffler.shuffle(shuffled)
     a, b = build_recording(spikes, trials), build_recording(shuffled, trials)
-    lat = LatencyPanel.model_validate({"name": "l", "kind": "latency", "resamples": 200})
-    resp = LevelResponsePanel.model_validate({"name": "r", "kind": "level_response", "resamples": 200})
-    for compute in (lambda r: raster_table(r, panel("raster")),
-                    lambda r: psth_table(r, panel("psth", bin_ms=10)),
-                    lambda r: latency_points(r, lat, ["u1"]),
-                    lambda r: response_points(r, resp, ["u1"])):
+    lat = LatencyPanel.model_validate({"name": "l", "kind": "latency", "unit": "u1", "resamples": 200})
+    resp = LevelResponsePanel.model_validate({"name": "r", "kind": "level_response", "unit": "u1", "resamples": 200})
+    for compute in (lambda r: compute_panel(r, panel("raster")),
+                    lambda r: compute_panel(r, panel("psth", bin_ms=10)),
+                    lambda r: compute_panel(r, lat)["points"],
+                    lambda r: compute_panel(r, resp)["points"]):
         pd.testing.assert_frame_equal(compute(a), compute(b))
 
 
@@ -40,7 +36,7 @@ def test_adding_silent_trials_lowers_every_rate(spike_lists, extra):
     spikes = [("u1", i + 1, i + t) for i, train in enumerate(spike_lists) for t in train] + [("u1", 1, 9.0)]
     more = trials + [(100 + j, 20, 100.0 + j, 100.05 + j) for j in range(extra)]
     p = panel("psth", bin_ms=10)
-    before = psth_table(build_recording(spikes, trials), p)["rate"].to_numpy()
-    after = psth_table(build_recording(spikes, more), p)["rate"].to_numpy()
+    before = compute_panel(build_recording(spikes, trials), p)["rate"].to_numpy()
+    after = compute_panel(build_recording(spikes, more), p)["rate"].to_numpy()
     assert (after <= before).all() and ((after < before) | (before == 0)).all()
     assert after == pytest.approx(before * len(trials) / (len(trials) + extra))

@@ -4,9 +4,9 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from figspec.compute.psth import bin_edges, psth_table
+from figspec.compute.psth import bin_edges
 
-from helpers import build_recording, panel
+from helpers import build_recording, panel, compute_panel
 
 
 def demo_like(rng, n_trials=12, levels=(0, 20, 40)):
@@ -28,7 +28,7 @@ def test_counts_equal_numpy_histogram(rng):
     # reference: numpy.histogram on the pooled spikes of each level (its last bin is closed,
     # ours half-open; random float times never land on the edge)
     rec, trials, spikes = demo_like(rng)
-    table = psth_table(rec, panel("psth", window_ms=(-50, 150), bin_ms=5, measure="count"))
+    table = compute_panel(rec, panel("psth", window_ms=(-50, 150), bin_ms=5, measure="count"))
     edges = bin_edges((-50, 150), 5)
     for level, rows in table.groupby("level"):
         expected, _ = np.histogram(aligned_ms(trials, spikes, level), edges)
@@ -38,10 +38,10 @@ def test_counts_equal_numpy_histogram(rng):
 def test_rate_is_count_over_trials_presented_times_width(rng):
     # rate = count / (n_trials x bin width): common practice, REFERENCES.md "Rate estimation"
     rec, _, _ = demo_like(rng)
-    table = psth_table(rec, panel("psth", window_ms=(-50, 150), bin_ms=5))
+    table = compute_panel(rec, panel("psth", window_ms=(-50, 150), bin_ms=5))
     assert (table["n_trials"] == 12).all()
     assert table["rate"].to_numpy() == pytest.approx(table["count"] / (12 * 0.005))
-    per_trial = psth_table(rec, panel("psth", window_ms=(-50, 150), bin_ms=5, measure="spikes_per_trial"))
+    per_trial = compute_panel(rec, panel("psth", window_ms=(-50, 150), bin_ms=5, measure="spikes_per_trial"))
     assert per_trial["rate"].to_numpy() == pytest.approx(table["count"] / 12)
     assert set(per_trial["rate_unit"]) == {"spikes/trial"}
 
@@ -54,7 +54,7 @@ def test_rate_equals_elephant_time_histogram(rng):
     from elephant.statistics import time_histogram
 
     rec, trials, spikes = demo_like(rng)
-    table = psth_table(rec, panel("psth", window_ms=(-50, 150), bin_ms=5))
+    table = compute_panel(rec, panel("psth", window_ms=(-50, 150), bin_ms=5))
     for level, rows in table.groupby("level"):
         onset = {t: on for t, lv, on, _ in trials if lv == level}
         trains = []
@@ -71,7 +71,7 @@ def test_a_trial_with_no_spikes_lowers_the_rate():
     two = build_recording(spikes, [(1, 50, 0.0, 0.05), (2, 50, 1.0, 1.05)])
     three = build_recording(spikes, [(1, 50, 0.0, 0.05), (2, 50, 1.0, 1.05), (3, 50, 2.0, 2.05)])
     p = panel("psth", window_ms=(0, 20), bin_ms=10)
-    r2, r3 = psth_table(two, p)["rate"].to_numpy(), psth_table(three, p)["rate"].to_numpy()
+    r2, r3 = compute_panel(two, p)["rate"].to_numpy(), compute_panel(three, p)["rate"].to_numpy()
     assert r2.tolist() == [0.0, 100.0]            # 2 spikes in [10, 20) ms / (2 trials x 10 ms)
     assert r3 == pytest.approx(r2 * 2 / 3)
 
@@ -87,7 +87,7 @@ def test_properties_total_and_row_order(trains, bin_ms, shuffler):
     spikes = [("u1", i + 1, i + t) for i, train in enumerate(trains) for t in train]
     spikes.append(("u1", 1, 5.0))  # outside the window; makes sure the unit exists
     p = panel("psth", window_ms=(-50, 150), bin_ms=bin_ms, measure="count")
-    table = psth_table(build_recording(spikes, trials), p)
+    table = compute_panel(build_recording(spikes, trials), p)
     rec = build_recording(spikes, trials)
     aligned = rec.times_s * 1e3
     # total counts equal the spikes inside the half-open window
@@ -95,5 +95,5 @@ def test_properties_total_and_row_order(trains, bin_ms, shuffler):
     # the order of rows in the spike table changes nothing
     shuffled = spikes[:]
     shuffler.shuffle(shuffled)
-    again = psth_table(build_recording(shuffled, trials), p)
+    again = compute_panel(build_recording(shuffled, trials), p)
     pd.testing.assert_frame_equal(table, again)

@@ -1,8 +1,8 @@
 import pytest
 
-from figspec.data.sources import load_source
+from figspec.data.readers import load_source
 from figspec.errors import DataError
-from figspec.spec.models import SourceSpec
+from figspec.spec.sources import CsvSource as SourceSpec
 
 from helpers import SPECS
 

@@ -9,7 +9,7 @@ from figspec import pipeline
 from figspec.draw.context import styled
 from figspec.draw.shading import wavelength_rgb
 
-from helpers import MINIMAL_SPEC, SPECS, draw_now, write_spec
+from helpers import MINIMAL_SPEC, SPECS, draw_now, write_spec, demo_text
 
 
 def render(path):
@@ -38,7 +38,7 @@ def test_repeats_fill_their_cells(composite):
     fig, _ = composite
     spikes, rate = panel_axes(fig, "Spikes"), panel_axes(fig, "Firing rate")
     overlay = panel_axes(fig, "Firing rate, all levels")[0]
-    response, latency = panel_axes(fig, "Response vs level")[0], panel_axes(fig, "Latency vs level")[0]
+    response, latency = panel_axes(fig, "Response vs sound level")[0], panel_axes(fig, "Latency vs sound level")[0]
     assert len(spikes) == 9 and len(rate) == 9
     width, height = fig.bbox.width, fig.bbox.height
     x = lambda ax: ax.get_window_extent().x0 / width       # noqa: E731  (fraction of the figure)
@@ -55,7 +55,7 @@ def test_shared_group_locks_limits_and_others_stay_free(composite):
     locked = panel_axes(fig, "Firing rate") + panel_axes(fig, "Firing rate, all levels")[:1]
     assert len({ax.get_ylim() for ax in locked}) == 1
     assert locked[0].get_ylim()[1] >= tables.panels["rate"]["rate"].max()
-    assert panel_axes(fig, "Response vs level")[0].get_ylim() != locked[0].get_ylim()
+    assert panel_axes(fig, "Response vs sound level")[0].get_ylim() != locked[0].get_ylim()
 
 
 def test_overlay_has_one_line_per_level_in_level_order(composite):
@@ -71,7 +71,7 @@ def test_letters_follow_reading_order(composite):
     fig, _ = composite
     letters = [(sub.get_suptitle(), sub.axes[0].get_title()) for sub in fig.subfigs]
     assert letters == [("a", "Spikes"), ("b", "Firing rate"), ("c", "Firing rate, all levels"),
-                       ("d", "Response vs level"), ("e", "Latency vs level")]
+                       ("d", "Response vs sound level"), ("e", "Latency vs sound level")]
 
 
 def test_scale_bars_measure_what_they_say(composite):
@@ -160,7 +160,7 @@ def test_columns_and_units(tmp_path):
 
 
 def test_letter_case_and_position_come_from_the_style(tmp_path):
-    text = (SPECS / "unit_composite.toml").read_text().replace("data/", str(SPECS / "data") + "/")
+    text = demo_text("unit_composite")
     text += '\n[style.letters]\ncase = "upper"\nposition = "center"\n'
     fig, _ = render(write_spec(tmp_path, text))
     sub = fig.subfigs[0]

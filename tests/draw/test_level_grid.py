@@ -7,7 +7,7 @@ from matplotlib.collections import LineCollection
 from figspec import pipeline
 from figspec.draw.context import styled
 
-from helpers import DEMO_SPEC, draw_now
+from helpers import DEMO_SPEC, draw_now, demo_text
 
 
 @pytest.fixture(scope="module")
@@ -65,9 +65,8 @@ def test_every_rate_row_has_the_same_y_limits(drawn):
 
 
 def test_unlocked_rows_scale_apart(tmp_path):
-    text = DEMO_SPEC.read_text().replace("bin_ms = 5", "bin_ms = 5\nlock_y = false")
     spec = tmp_path / "unlocked.toml"
-    spec.write_text(text.replace("data/", str(DEMO_SPEC.parent / "data") + "/"))
+    spec.write_text(demo_text("level_grid").replace("bin_ms = 5", "bin_ms = 5\nlock_y = false"))
     resolved = pipeline.resolve(pipeline.load(spec))
     with styled(resolved.style):
         fig = pipeline.draw(resolved, pipeline.compute(resolved))

@@ -3,7 +3,7 @@ import re
 import pytest
 
 from figspec import pipeline
-from figspec.output.files import write_atomic
+from figspec.output.files import write_all
 
 from helpers import DEMO_SPEC
 
@@ -56,11 +56,11 @@ def test_same_spec_renders_to_the_same_bytes(rendered, tmp_path):
         assert first.read_bytes() == second.read_bytes(), first.name
 
 
-def test_atomic_write_leaves_the_old_file_when_writing_fails(tmp_path):
-    target = tmp_path / "f.txt"
-    target.write_bytes(b"old")
-
-    with pytest.raises(TypeError):
-        write_atomic(target, "not bytes")  # fails inside the write, after the temporary file exists
-    assert target.read_bytes() == b"old"
-    assert list(tmp_path.iterdir()) == [target]
+def test_a_set_that_fails_to_stage_leaves_every_old_file_and_no_temporary(tmp_path):
+    old = tmp_path / "a.txt"
+    old.write_bytes(b"old")
+    (tmp_path / "blocker").write_bytes(b"a file where a folder is needed")
+    with pytest.raises(OSError):
+        write_all({old: b"new", tmp_path / "blocker" / "b.txt": b"new"})
+    assert old.read_bytes() == b"old"
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["a.txt", "blocker"]

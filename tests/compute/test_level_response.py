@@ -3,10 +3,15 @@ import pandas as pd
 import pytest
 from scipy import stats
 
-from figspec.compute.response import response_points
+from figspec.compute.level_response import response_points
 from figspec.spec.panels import LevelResponsePanel
 
 from helpers import build_recording
+
+
+# scipy.stats.wilcoxon's zero_method values (scipy docs): "wilcox" drops zero differences
+# (Wilcoxon 1945), "pratt" ranks them then drops them (Pratt 1959), "zsplit" splits their ranks
+SCIPY_ZERO_METHOD = {"drop": "wilcox", "keep": "pratt", "split": "zsplit"}
 
 
 def response_panel(**keys):
@@ -33,16 +38,17 @@ def raw_counts(trials, spikes, window_s):
     return inside.groupby("trial").size().reindex([t for t, *_ in trials], fill_value=0).to_numpy()
 
 
-@pytest.mark.parametrize("zero_method", ["wilcox", "pratt", "zsplit"])
-def test_p_values_equal_scipy_wilcoxon_on_per_trial_counts(rng, zero_method):
+@pytest.mark.parametrize("zero_differences", ["drop", "keep", "split"])
+def test_p_values_equal_scipy_wilcoxon_on_per_trial_counts(rng, zero_differences):
     # reference: scipy.stats.wilcoxon(evoked, baseline, alternative='greater', zero_method=...)
     rec, trials, spikes = synthetic(rng)
-    table = response_points(rec, response_panel(measure="count", zero_method=zero_method), ["u1"])
+    table = response_points(rec, response_panel(measure="count", zero_differences=zero_differences))
     evoked, base = raw_counts(trials, spikes, (0, 0.05)), raw_counts(trials, spikes, (-0.05, 0))
     level = np.array([lv for _, lv, *_ in trials])
     for _, row in table.iterrows():
         at = level == row["level"]
-        ref = stats.wilcoxon(evoked[at], base[at], alternative="greater", zero_method=zero_method)
+        ref = stats.wilcoxon(evoked[at], base[at], alternative="greater",
+                             zero_method=SCIPY_ZERO_METHOD[zero_differences])
         assert row["p"] == pytest.approx(ref.pvalue, rel=1e-12)
         assert row["response"] == pytest.approx(evoked[at].mean())
         assert row["error_high"] - row["response"] == pytest.approx(stats.sem(evoked[at]))
@@ -50,7 +56,7 @@ def test_p_values_equal_scipy_wilcoxon_on_per_trial_counts(rng, zero_method):
 
 def test_holm_and_significance(rng):
     rec, _, _ = synthetic(rng)
-    table = response_points(rec, response_panel(), ["u1"])
+    table = response_points(rec, response_panel())
     assert (table["p_holm"] >= table["p"]).all()
     assert table["significant"].tolist() == (table["p_holm"] < 0.05).tolist()
     assert table.iloc[-1]["significant"]        # 60 dB: 7 evoked vs 1 baseline spike per trial
@@ -58,8 +64,8 @@ def test_holm_and_significance(rng):
 
 def test_rate_and_baseline_subtraction_units(rng):
     rec, trials, spikes = synthetic(rng)
-    counts = response_points(rec, response_panel(measure="count"), ["u1"])
-    rates = response_points(rec, response_panel(subtract_baseline=True), ["u1"])
+    counts = response_points(rec, response_panel(measure="count"))
+    rates = response_points(rec, response_panel(subtract_baseline=True))
     expected = (counts["response"] - counts["baseline"]) / 0.05
     assert rates["response"].to_numpy() == pytest.approx(expected.to_numpy())
     assert set(rates["response_unit"]) == {"spikes/s"}
@@ -68,13 +74,13 @@ def test_rate_and_baseline_subtraction_units(rng):
 def test_trials_without_spikes_count_as_zero(rng):
     trials = [(1, 40, 0.0, 0.05), (2, 40, 1.0, 1.05)]
     table = response_points(build_recording([("u1", 1, 0.01)], trials), response_panel(measure="count",
-                                                                                       test="none"), ["u1"])
+                                                                                       test="none"))
     assert table.iloc[0]["response"] == 0.5 and table.iloc[0]["n_trials"] == 2
 
 
 def test_bootstrap_error_brackets_the_mean(rng):
     rec, _, _ = synthetic(rng)
-    table = response_points(rec, response_panel(error="bootstrap", resamples=500), ["u1"])
+    table = response_points(rec, response_panel(error="bootstrap", resamples=500))
     assert ((table["error_low"] <= table["response"]) & (table["response"] <= table["error_high"])).all()
     assert table["error_kind"].str.contains("bootstrap").all()
 

@@ -2,7 +2,7 @@ import numpy as np
 import pytest
 
 from figspec import pipeline
-from figspec.compute.summary import latency_tables, level_response_tables
+from figspec.compute import latency, level_response
 from figspec.errors import FigspecWarning
 from figspec.spec.models import LevelSpec
 from figspec.spec.panels import LatencyPanel, LevelResponsePanel
@@ -21,7 +21,7 @@ def test_demo_level_response_tables(demo):
     panel = LevelResponsePanel.model_validate({"name": "r", "kind": "level_response", "units": ["u1", "u3"],
                                                "response_ms": [0, 60], "baseline_ms": [-60, 0],
                                                "fit": "naka_rushton"})
-    tables = level_response_tables(demo, panel, DB)
+    tables = level_response.compute(demo, panel, DB)
     points, curve, params = tables["points"], tables["fit"], tables["params"]
     assert len(points) == 2 * 9 and set(points["n_trials"]) == {30}
     assert set(curve["unit"]) == {"u1", "u3"} and len(curve) == 2 * 200
@@ -39,7 +39,7 @@ def test_failed_fit_warns_and_leaves_no_curve(demo):
     panel = LatencyPanel.model_validate({"name": "l", "kind": "latency", "unit": "u1", "levels": [60, 70, 80],
                                          "fit": "pieron"})
     with pytest.warns(FigspecWarning, match="pieron fit ill-conditioned"):
-        tables = latency_tables(demo, panel, DB)
+        tables = latency.compute(demo, panel, DB)
     assert tables["fit"].empty
     assert tables["params"].set_index("quantity").loc["status", "note"] == "ill-conditioned"
     assert len(tables["points"]) == 3

@@ -1,5 +1,5 @@
 """Look at a drawn figure as a reader would: the texts and lines actually drawn, and which
-panel each belongs to. Used by preflight and by the geometry tests."""
+panel each belongs to. Used by the journal check and by the geometry tests."""
 
 from __future__ import annotations
 

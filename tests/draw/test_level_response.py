@@ -26,9 +26,9 @@ def by_gid(ax, prefix):
 
 def test_response_panel_points_fits_and_thresholds(drawn):
     _, tables, axes = drawn
-    ax = axes["Response vs level"]
+    ax = axes["Response vs sound level"]
     points = tables.panels["response"]["points"]
-    filled, open_ = by_gid(ax, "points:"), by_gid(ax, "points_ns:")
+    filled, open_ = by_gid(ax, "category:"), by_gid(ax, "points_ns:")
     assert set(filled) == {"u1", "u2", "u3"} and set(by_gid(ax, "fit:")) == {"u1", "u2", "u3"}
     for unit, rows in points.groupby("unit"):
         sig = rows[rows["significant"]]
@@ -45,13 +45,13 @@ def test_response_panel_points_fits_and_thresholds(drawn):
 def test_fit_curve_is_the_fit_table(drawn):
     _, tables, axes = drawn
     curve = tables.panels["latency"]["fit"]
-    line = by_gid(axes["Latency vs level"], "fit:")["u2"]
+    line = by_gid(axes["Latency vs sound level"], "fit:")["u2"]
     np.testing.assert_array_equal(line.get_ydata(), curve[curve["unit"] == "u2"]["latency_ms"])
 
 
 def test_population_panel_rows_share_limits_and_show_sem(drawn):
     _, _, axes = drawn
-    fig = axes["Response vs level"].get_figure(root=True)
+    fig = axes["Response vs sound level"].get_figure(root=True)
     population = [ax for ax in fig.axes if any(p.get_gid() == "rate_sem" for p in ax.patches)]
     assert len(population) == 3
     assert len({ax.get_ylim() for ax in population}) == 1

@@ -1,4 +1,4 @@
-"""Preflight: check a rendered figure and its files against a profile (journal limits).
+"""Journal check: a rendered figure and its files against a journal profile (its limits).
 
 Each finding names the rule, the panel and the element, so it can be fixed where it is.
 """
@@ -8,13 +8,13 @@ from __future__ import annotations
 import itertools
 import re
 from dataclasses import dataclass
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Callable
 
 import numpy as np
 
 from figspec.output.colour_vision import delta_e, simulate
-from figspec.output.inspect import drawn_lines, drawn_texts, panel_of
-from figspec.spec.profile import Profile
+from figspec.output.drawn import drawn_lines, drawn_texts, panel_of
+from figspec.spec.journals import Profile
 
 if TYPE_CHECKING:
     from matplotlib.figure import Figure
@@ -31,13 +31,16 @@ class Finding:
 
     def format(self, profile: Profile) -> str:
         where = "figure" if self.panel == "figure" else f"panel {self.panel!r}"
-        return f"preflight {profile.name}: {self.rule}: {where}, {self.element}: {self.message}"
+        return f"journal check {profile.name}: {self.rule}: {where}, {self.element}: {self.message}"
 
 
-def preflight(fig: "Figure", files: dict[str, bytes], profile: Profile) -> list[Finding]:
+def journal_check(fig: "Figure", files: dict[str, bytes], profile: Profile,
+                  categories: dict[str, Callable[[list], dict[str, tuple]]]) -> list[Finding]:
     """Every finding of ``profile``'s rules on a drawn ``fig`` and its rendered ``files``
-    (format -> bytes)."""
-    findings = _size(fig, profile) + _text(fig, profile) + _lines(fig, profile) + _colours(fig, profile)
+    (format -> bytes). ``categories`` gives, per panel name, the function that reads the
+    categorical colours off that panel's artists (its kind's, from the registry)."""
+    findings = _size(fig, profile) + _text(fig, profile) + _lines(fig, profile)
+    findings += _colours(categorical_colours(fig, categories), profile)
     findings += _fonts(files, profile) + _file_size(files, profile)
     return findings
 
@@ -76,21 +79,21 @@ def _lines(fig, profile: Profile) -> list[Finding]:
             for (panel, what), width in thin.items()]
 
 
-def categorical_colours(fig) -> dict[str, dict[str, tuple]]:
+def categorical_colours(fig, categories: dict[str, Callable]) -> dict[str, dict[str, tuple]]:
     """Per panel, the colour of each category (unit) drawn with a palette colour."""
-    from matplotlib.colors import to_rgb
-
     out: dict[str, dict[str, tuple]] = {}
-    for artist in fig.findobj(lambda a: (a.get_gid() or "").startswith(("points:", "unit_rate:"))):
-        name = artist.get_gid().split(":", 1)[1]
-        colour = artist.get_color() if hasattr(artist, "get_color") else artist.get_edgecolor()
-        out.setdefault(panel_of(artist), {})[name] = to_rgb(colour)
+    for sub in fig.subfigs:
+        read = categories.get(sub.get_gid())
+        if read is not None:
+            found = read(sub.findobj(lambda a: a.get_visible()))
+            if found:
+                out[sub.get_gid()] = found
     return out
 
 
-def _colours(fig, profile: Profile) -> list[Finding]:
+def _colours(by_panel: dict[str, dict[str, tuple]], profile: Profile) -> list[Finding]:
     out = []
-    for panel, colours in categorical_colours(fig).items():
+    for panel, colours in by_panel.items():
         for (a, ca), (b, cb) in itertools.combinations(sorted(colours.items()), 2):
             for deficiency in ("deuteranopia", "protanopia"):
                 d = float(delta_e(simulate(np.array(ca), deficiency), simulate(np.array(cb), deficiency)))

@@ -1,4 +1,4 @@
-"""Preflight profiles: what a journal (or a lab) requires of a figure file, as TOML."""
+"""Journal profiles: what a journal (or a lab) requires of a figure file, as TOML."""
 
 from __future__ import annotations
 
@@ -8,14 +8,14 @@ from typing import Annotated
 from pydantic import Field
 
 from figspec.errors import Problem, SpecError
-from figspec.spec.style import PACKAGE_STYLES, SOURCE_STYLES
-from figspec.spec.types import Frozen
+from figspec.spec.style import BUILTIN_STYLES, lab_style_folders
+from figspec.spec.fields import Frozen
 
 Positive = Annotated[float, Field(gt=0)]
 
 
 class Profile(Frozen):
-    """Limits a rendered figure is checked against (see ``figspec check --preflight``)."""
+    """Limits a rendered figure is checked against (see ``figspec check --journal``)."""
 
     name: str
     column_widths_mm: list[Positive] = Field(min_length=1)
@@ -29,18 +29,17 @@ class Profile(Frozen):
 
 
 def profile_path(name: str, folder: Path | None = None) -> Path:
-    """A profile by path (``.toml``) or by name in ``styles/profiles/`` beside the spec, then
+    """A profile by path (``.toml``) or by name in ``journals/`` of the lab's style folders, then
     figspec's own."""
     if name.endswith(".toml"):
         return (folder or Path.cwd()) / name
-    places = ([folder / "styles" / "profiles"] if folder else []) + [SOURCE_STYLES / "profiles",
-                                                                     PACKAGE_STYLES / "profiles"]
+    places = [place / "journals" for place in lab_style_folders(folder)] + [BUILTIN_STYLES / "journals"]
     for place in places:
         if (place / f"{name}.toml").is_file():
             return place / f"{name}.toml"
     known = sorted({p.stem for place in places if place.is_dir() for p in place.glob("*.toml")})
-    raise SpecError(Problem(f"no preflight profile named {name!r} (known: {', '.join(known)})",
-                            ("figure", "profile"), repr(name)))
+    raise SpecError(Problem(f"no journal profile named {name!r} (known: {', '.join(known)})",
+                            ("figure", "journal"), repr(name)))
 
 
 def load_profile(name: str, folder: Path | None = None) -> Profile:

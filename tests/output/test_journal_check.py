@@ -1,10 +1,11 @@
-"""Each preflight rule fails on a figure made to break it and passes on the demo figures."""
+"""Each journal check rule fails on a figure made to break it and passes on the demo figures."""
 
 import pytest
 
 from figspec import pipeline
-from figspec.output.preflight import preflight
-from figspec.spec.profile import load_profile
+from figspec.output.journal_check import journal_check
+from figspec.spec.journals import load_profile
+from figspec.spec.style import BUILTIN_STYLES
 
 from helpers import MINIMAL_SPEC, SPECS, write_spec
 
@@ -13,12 +14,12 @@ DEMOS = sorted(SPECS.glob("*.toml"))
 
 @pytest.mark.parametrize("spec", DEMOS, ids=[p.stem for p in DEMOS])
 def test_demo_figures_pass_the_nature_profile(spec):
-    result = pipeline.preflight(pipeline.check(spec), "nature")
+    result = pipeline.journal_check(pipeline.check(spec), "nature")
     assert [f.format(result.profile) for f in result.findings] == []
 
 
 def findings(tmp_path, text, profile="nature"):
-    result = pipeline.preflight(pipeline.check(write_spec(tmp_path, text)), profile)
+    result = pipeline.journal_check(pipeline.check(write_spec(tmp_path, text)), profile)
     return {f.rule: f for f in result.findings}
 
 
@@ -60,24 +61,24 @@ def test_type3_and_unembedded_fonts(tmp_path):
     fake = {"pdf": b"%PDF-1.4 /Type /FontDescriptor /Subtype /Type3"}
     from matplotlib.figure import Figure
 
-    rules = {f.rule + ": " + f.message for f in preflight(Figure(figsize=(89 / 25.4, 2)), fake, profile)}
+    rules = {f.rule + ": " + f.message for f in journal_check(Figure(figsize=(89 / 25.4, 2)), fake, profile, {})}
     assert any("Type 3" in r for r in rules) and any("not embedded" in r for r in rules)
 
 
 def test_file_size_limit(tmp_path):
     (tmp_path / "tiny.toml").write_text(
-        (SPECS.parent / "styles" / "profiles" / "nature.toml").read_text().replace("max_file_mb = 10", "max_file_mb = 0.001"))
+        (BUILTIN_STYLES / "journals" / "nature.toml").read_text().replace("max_file_mb = 10", "max_file_mb = 0.001"))
     found = findings(tmp_path, GOOD, str(tmp_path / "tiny.toml"))["file size"]
     assert "MB is over 0.001 MB" in found.message
 
 
-def test_strict_preflight_exits_2(tmp_path):
+def test_strict_journal_check_exits_2(tmp_path):
     import subprocess
     import sys
 
     path = write_spec(tmp_path, MINIMAL_SPEC)
     run = lambda *a: subprocess.run([sys.executable, "-m", "figspec", "check", str(path), *a],  # noqa: E731
                                     capture_output=True, text=True)
-    assert run("--preflight", "nature").returncode == 0
-    strict = run("--preflight", "nature", "--strict")
-    assert strict.returncode == 2 and "preflight Nature: width: figure, page:" in strict.stderr
+    assert run("--journal", "nature").returncode == 0
+    strict = run("--journal", "nature", "--strict")
+    assert strict.returncode == 2 and "journal check Nature: width: figure, page:" in strict.stderr

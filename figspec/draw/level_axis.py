@@ -1,0 +1,37 @@
+"""The level axis of the kinds with level on x: scale, data limits and default labels."""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+import numpy as np
+
+from figspec.spec.models import LevelSpec
+
+if TYPE_CHECKING:
+    from matplotlib.axes import Axes
+
+MARGIN = 0.05          # fraction of the level span left free at each end (matplotlib's default)
+
+
+def set_level_scale(ax: "Axes", panel) -> None:
+    if panel.level_axis == "log":
+        ax.set_xscale("log")
+
+
+def level_limits(levels: np.ndarray, axis: str) -> tuple[float, float]:
+    """x-limits holding every level, with a margin on the axis' own scale."""
+    lo, hi = float(np.nanmin(levels)), float(np.nanmax(levels))
+    if axis == "log":
+        a, b = np.log10(lo), np.log10(hi)
+        pad = MARGIN * (b - a) if b > a else 0.1
+        return float(10 ** (a - pad)), float(10 ** (b + pad))
+    pad = MARGIN * (hi - lo) if hi > lo else 0.5
+    return lo - pad, hi + pad
+
+
+def versus_title(what: str, levels: LevelSpec) -> str:
+    """A default title such as "Latency vs sound level" from the spec's level quantity."""
+    quantity = levels.quantity
+    shown = quantity if quantity[:2].isupper() else quantity[:1].lower() + quantity[1:]
+    return f"{what} vs {shown}"

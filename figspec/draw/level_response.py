@@ -1,0 +1,77 @@
+"""``level_response`` axes: level on x, one colour per unit, error bars, test markers, fitted
+curves, thresholds, and a key."""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+import numpy as np
+import pandas as pd
+
+from figspec.draw.colours import category_gid, unit_colours
+from figspec.draw.context import DrawContext, Labels
+from figspec.draw.level_axis import level_limits, set_level_scale, versus_title
+from figspec.spec.models import LevelSpec
+from figspec.spec.panels import LevelResponsePanel
+
+if TYPE_CHECKING:
+    from matplotlib.axes import Axes
+
+RESPONSE_LABELS = {"spikes/s": "Evoked rate (spikes/s)", "spikes": "Evoked spikes per trial"}
+
+
+def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LevelResponsePanel, ctx: DrawContext) -> None:
+    """Mean response per level with its error bars, filled markers where the level's
+    Holm-corrected test is significant (open otherwise), the fitted curve, and a mark on the
+    level axis at each unit's threshold by test."""
+    points, curve, params = tables["points"], tables["fit"], tables["params"]
+    colours = unit_colours(points["unit"], ctx.style)
+    tested = panel.test != "none"
+    for unit, rows in points.groupby("unit", sort=False):
+        c = colours[unit]
+        x, y = rows["level"].to_numpy(), rows["response"].to_numpy()
+        err = np.vstack([y - rows["error_low"].to_numpy(), rows["error_high"].to_numpy() - y])
+        line = "none" if panel.fit != "none" else "-"
+        ax.errorbar(x, y, yerr=np.nan_to_num(err), color=c, linestyle=line, marker="none", gid=f"errors:{unit}")
+        sig = rows["significant"].to_numpy(dtype=bool) if tested else np.ones(len(rows), bool)
+        ax.plot(x[sig], y[sig], "o", color=c, markeredgecolor=c, label=unit, gid=category_gid(unit))
+        ax.plot(x[~sig], y[~sig], "o", color="white", markeredgecolor=c, gid=f"points_ns:{unit}")
+        fitted = curve[curve["unit"] == unit]
+        if len(fitted):
+            ax.plot(fitted["level"], fitted["response"], "-", color=c, gid=f"fit:{unit}")
+        thr = params[(params["unit"] == unit) & (params["quantity"] == "threshold_by_test")]["value"]
+        if len(thr) and np.isfinite(thr.iloc[0]):
+            ax.plot([thr.iloc[0]], [0.0], marker=6, color=c, clip_on=False, linestyle="none",
+                    transform=ax.get_xaxis_transform(), gid=f"threshold:{unit}")
+    if panel.subtract_baseline:
+        ax.axhline(0.0, color="0.6", linewidth=ctx.style.axes.line_pt, zorder=0)
+    set_level_scale(ax, panel)
+    if not panel.subtract_baseline:
+        ax.set_ylim(bottom=0)
+    handles, names = ax.get_legend_handles_labels()
+    if len(colours) == 1:                        # one unit: the key explains markers only
+        handles, names = [], []
+    if tested:
+        from matplotlib.lines import Line2D
+
+        handles.append(Line2D([], [], marker=6, color="0.3", linestyle="none"))
+        names.append("threshold (test)")
+    title = "filled: p < %g (Holm)" % panel.alpha if tested else None
+    if not handles and title is None:
+        return
+    ax.legend(handles, names, title=title, loc="upper left", title_fontsize=ctx.style.font.tick_pt,
+              handletextpad=0.2, borderaxespad=0.2, alignment="left")
+
+
+def labels(panel: LevelResponsePanel, tables: dict[str, pd.DataFrame], levels: LevelSpec) -> Labels:
+    unit = str(tables["points"]["response_unit"].iloc[0])
+    return Labels(versus_title("Response", levels), levels.axis_label, RESPONSE_LABELS[unit], unit)
+
+
+def limits(panel: LevelResponsePanel, tables: dict[str, pd.DataFrame]) -> dict[str, tuple[float, float]]:
+    points, curve = tables["points"], tables["fit"]
+    values = np.concatenate([np.asarray(v, dtype=float) for v in
+                             (points["error_low"], points["error_high"], points["response"], curve["response"])])
+    low = float(np.nanmin(values)) if not panel.subtract_baseline else min(0.0, float(np.nanmin(values)))
+    return {"x": level_limits(points["level"].to_numpy(), panel.level_axis),
+            "y": (0.0 if not panel.subtract_baseline else low, float(np.nanmax(values)))}

@@ -1,0 +1,28 @@
+"""Optional features: the extras that install their libraries, and the one way figspec imports
+such a library, so a plain install names the missing extra instead of failing with a traceback."""
+
+from __future__ import annotations
+
+import importlib
+from types import ModuleType
+
+from figspec.errors import DataError, Loc, Problem
+
+EXTRAS: dict[str, str] = {}   # importable module -> the extra of pyproject.toml that installs it
+
+
+def require(module: str, feature: str, loc: Loc = ()) -> ModuleType:
+    """Import an optional library, or raise a user error naming the ``pip install`` command.
+
+    Parameters
+    ----------
+    module : the library's import name (a key of :data:`EXTRAS`).
+    feature : what needs it, for the message (e.g. ``"format = 'nwb'"``).
+    loc : key path of the spec key that asked for the feature.
+    """
+    try:
+        return importlib.import_module(module)
+    except ImportError:
+        extra = EXTRAS[module]
+        raise DataError(Problem(f"{feature} needs the optional package {module!r}, which is not installed: "
+                                f"pip install 'figspec[{extra}]'", loc)) from None

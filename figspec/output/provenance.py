@@ -1,0 +1,57 @@
+"""What a figure was made from and with: input files with their hashes, and every resolved
+parameter (for the manifest and the provenance line in each figure file)."""
+
+from __future__ import annotations
+
+import hashlib
+from pathlib import Path
+from typing import Any, Iterable
+
+import pandas as pd
+
+from figspec import __version__
+from figspec.spec.style import BUILTIN_STYLES
+
+
+def input_files(files: Iterable[tuple[str, Path]]) -> list[dict]:
+    """``[{"role", "path", "sha256"}]`` of every (role, file) a figure was made from."""
+    return [{"role": role, "path": shown_path(Path(path).resolve()), "sha256": file_sha256(Path(path))}
+            for role, path in files]
+
+
+def provenance_line(inputs: list[dict]) -> str:
+    """The line written into every figure file: figspec's version and each input's hash."""
+    return f"figspec {__version__}; " + "; ".join(f"{i['role']} sha256:{i['sha256']}" for i in inputs)
+
+
+def shown_path(path: Path) -> str:
+    """A path as the manifest shows it: figspec's own files by name (not where figspec is
+    installed), others relative to the working folder when below it."""
+    if path.is_relative_to(BUILTIN_STYLES):
+        return "figspec:styles/" + path.relative_to(BUILTIN_STYLES).as_posix()
+    cwd = Path.cwd().resolve()
+    return path.relative_to(cwd).as_posix() if path.is_relative_to(cwd) else str(path)
+
+
+def file_sha256(path: Path) -> str:
+    digest = hashlib.sha256()
+    with open(path, "rb") as handle:
+        for block in iter(lambda: handle.read(1 << 20), b""):
+            digest.update(block)
+    return digest.hexdigest()
+
+
+def parameters(spec: Any, panels: Iterable[Any], style: Any) -> dict:
+    """Every parameter the figure was made with (the spec as written, each panel as resolved:
+    defaults and automatic choices filled in, the style), and the versions that shape the
+    output bytes."""
+    import matplotlib
+    import numpy
+
+    return {
+        "spec": spec.model_dump(mode="json"),
+        "panels_resolved": [p.model_dump(mode="json") for p in panels],
+        "style": style.model_dump(mode="json"),
+        "versions": {"figspec": __version__, "matplotlib": matplotlib.__version__,
+                     "numpy": numpy.__version__, "pandas": pd.__version__},
+    }

@@ -1,0 +1,101 @@
+"""The keys every panel kind shares, and the two families of kinds: time on x (one axes per
+level or unit) and level on x (one axes, one line per unit)."""
+
+from __future__ import annotations
+
+from typing import Annotated, Literal
+
+from pydantic import Field, model_validator
+
+from figspec.spec.fields import Frozen, Name, WindowMs
+
+Probability = Annotated[float, Field(gt=0, lt=1)]
+GridCell = tuple[Annotated[int, Field(ge=1)], Annotated[int, Field(ge=1)]]
+Step = Annotated[float, Field(gt=0)]
+
+
+class PanelBase(Frozen):
+    """Keys every panel kind has: what to draw from, where in the grid, labels and ticks."""
+
+    name: Name
+    source: str | None = None
+    unit: str | None = None
+    units: list[str] | None = Field(default=None, min_length=1)
+    levels: list[float] | None = None
+    cell: GridCell | None = None
+    span: GridCell = (1, 1)
+    title: str | None = None
+    x_label: str | None = None
+    x_ticks: list[float] | None = None
+    x_step: Step | None = None
+    y_ticks: list[float] | None = None
+    y_step: Step | None = None
+
+    @model_validator(mode="after")
+    def _ticks(self) -> "PanelBase":
+        for axis in ("x", "y"):
+            if getattr(self, f"{axis}_ticks") is not None and getattr(self, f"{axis}_step") is not None:
+                raise ValueError(f"give {axis}_ticks or {axis}_step, not both")
+        return self
+
+    def fitted_model(self) -> str | None:
+        """The model fitted to the panel's points (it needs ``levels.scale``), if any."""
+        return None
+
+    def unit_names(self) -> list[str]:
+        """The units the panel shows: its ``units``, else its one ``unit``."""
+        return list(self.units) if self.units else [self.unit]
+
+    def windows(self) -> dict[str, tuple[float, float]]:
+        """The panel's time windows (ms from the alignment point) by key, for data checks."""
+        return {}
+
+
+class TimePanel(PanelBase):
+    """Panels with time on x, repeated per level (or per unit) down rows or across columns, or
+    overlaid in one axes. Scale bars can replace the axes."""
+
+    units: list[str] | None = Field(default=None, min_length=2)
+    repeat: Literal["level", "unit"] = "level"
+    arrange: Literal["rows", "columns", "overlay"] = "rows"
+    window_ms: WindowMs = (-50.0, 150.0)
+    scale_bars: bool = False
+    time_bar_ms: Step | None = None
+
+    @model_validator(mode="after")
+    def _arrangement(self) -> "TimePanel":
+        if self.repeat == "unit" and not self.units:
+            raise ValueError("repeat = 'unit' needs units = [...] naming the units to repeat over")
+        if self.repeat == "unit" and self.arrange != "overlay" and (self.levels is None or len(self.levels) != 1):
+            raise ValueError("one axes per unit shows one level: set levels = [L]")
+        return self
+
+    def windows(self) -> dict[str, tuple[float, float]]:
+        return {"window_ms": self.window_ms}
+
+    def stimulus_units(self) -> list[str]:
+        """Whose trials give the stimulus windows: each repeated unit, else the first unit."""
+        return list(self.units) if self.units and self.repeat == "unit" else self.unit_names()[:1]
+
+
+class SummaryPanel(PanelBase):
+    """Panels with level on x and one line per unit."""
+
+    response_ms: WindowMs = (0.0, 50.0)
+    baseline_ms: WindowMs = (-50.0, 0.0)
+    level_axis: Literal["linear", "log"] = "linear"
+    confidence: Probability = 0.95
+    resamples: Annotated[int, Field(ge=200, le=100_000)] = 2000
+    seed: int = 0
+    y_label: str | None = None
+
+    @model_validator(mode="after")
+    def _windows(self) -> "SummaryPanel":
+        if self.response_ms[0] < 0:
+            raise ValueError(f"response_ms must start at or after stimulus onset (0 ms), got {list(self.response_ms)}")
+        if self.baseline_ms[1] > 0:
+            raise ValueError(f"baseline_ms must end by stimulus onset (0 ms), got {list(self.baseline_ms)}")
+        return self
+
+    def windows(self) -> dict[str, tuple[float, float]]:
+        return {"response_ms": self.response_ms, "baseline_ms": self.baseline_ms}

@@ -1,0 +1,29 @@
+"""The journal check of a drawn figure: its profile (named on the command line or in
+``figure.journal``) and the findings."""
+
+from __future__ import annotations
+
+from figspec.draw.context import styled
+from figspec.errors import UserError
+from figspec.output.journal_check import journal_check
+from figspec.registry import kind_of
+from figspec.spec.journals import Profile, load_profile
+from figspec.steps.resolve import Resolved
+
+
+def profile(resolved: Resolved, name: str | None) -> Profile | None:
+    """The profile ``name`` (else the spec's ``figure.journal``), or None when neither names one."""
+    name = name or resolved.spec.model.figure.journal
+    if name is None:
+        return None
+    try:
+        return load_profile(name, resolved.spec.folder)
+    except UserError as err:
+        raise type(err)([resolved.spec.locate(p) for p in err.problems]) from None
+
+
+def findings(resolved: Resolved, fig, files: dict[str, bytes], target: Profile) -> list:
+    """Every finding of ``target`` on the drawn figure and its files."""
+    readers = {p.name: kind_of(p).categories for p in resolved.panels}
+    with styled(resolved.style):
+        return journal_check(fig, files, target, readers)

@@ -1,0 +1,73 @@
+"""Step 5: the figure in every format, the source-data tables, the statistics table, the
+legend text and the manifest, written as one set."""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import TYPE_CHECKING, Sequence
+
+from figspec import __version__
+from figspec.compute.describe import About
+from figspec.output.files import figure_files, table_bytes, write_all
+from figspec.output.provenance import input_files, parameters, provenance_line
+from figspec.output.report import legend_text, manifest, statistics_table
+from figspec.registry import kind_of
+from figspec.spec.layout import panel_letters
+from figspec.steps.compute import Tables
+from figspec.steps.resolve import Resolved
+
+if TYPE_CHECKING:
+    from matplotlib.figure import Figure
+
+SOFTWARE = f"figspec {__version__}"
+
+
+def inputs(resolved: Resolved) -> list[dict]:
+    """Every file the figure was made from (spec, each source's files, style files), with hashes."""
+    spec = resolved.spec
+    files = [("spec", spec.path)]
+    for name, src in spec.model.sources.items():
+        files += [(f"data:{name}:{role}", spec.folder / path) for role, path in src.files().items()]
+    files += [(f"style:{source.path.stem}", source.path) for source in resolved.style_sources if source.prefix == ()]
+    return input_files(files)
+
+
+def figures(resolved: Resolved, fig: "Figure", formats: Sequence[str], provenance: str = "") -> dict[str, bytes]:
+    """``{format: bytes}`` of the drawn figure."""
+    return figure_files(fig, resolved.style, formats, resolved.spec.model.figure.png_dpi, SOFTWARE, provenance)
+
+
+def legend(resolved: Resolved, tables: Tables) -> str:
+    """The legend text: each panel's sentence from its kind, naming it as the figure does."""
+    model = resolved.spec.model
+    letters = panel_letters(model.layout, list(model.panels))
+    sentences = []
+    for declared, panel in zip(model.panels, resolved.panels):
+        about = About(letters.get(panel.name, panel.name), declared, model.levels.unit)
+        sentences.append(kind_of(panel).legend(panel, tables.panels[panel.name], about))
+    return legend_text(model.figure.title, sentences)
+
+
+def statistics(resolved: Resolved, tables: Tables):
+    return statistics_table(row for p in resolved.panels for row in kind_of(p).statistics(p, tables.panels[p.name]))
+
+
+def save(resolved: Resolved, tables: Tables, fig: "Figure", outdir: str | Path,
+         formats: Sequence[str] | None = None) -> list[Path]:
+    """Write ``OUTDIR/<stem>.<format>`` and ``OUTDIR/<stem>_data/`` as one set (see
+    :func:`figspec.output.files.write_all`); returns the paths written."""
+    model = resolved.spec.model
+    outdir = Path(outdir)
+    stem = outdir / resolved.spec.path.stem
+    data_dir = outdir / f"{stem.name}_data"
+    sources = inputs(resolved)
+    files = figures(resolved, fig, formats or model.figure.formats, provenance_line(sources))
+    payload = {stem.with_suffix(f".{fmt}"): data for fmt, data in files.items()}
+    for name, table in tables.for_export().items():
+        payload[data_dir / f"{name}.csv"] = table_bytes(table)
+    payload[data_dir / "statistics.csv"] = table_bytes(statistics(resolved, tables))
+    payload[data_dir / "legend.md"] = legend(resolved, tables).encode()
+    outputs = {p.relative_to(outdir).as_posix(): data for p, data in payload.items()}
+    payload[data_dir / "manifest.json"] = manifest(sources, outputs,
+                                                   parameters(model, resolved.panels, resolved.style))
+    return write_all(payload)
