@@ -103,3 +103,7 @@ def compute_panel(rec, panel_model, levels=None):
     levels = levels or LevelSpec()
     kind = kind_of(panel_model)
     return kind.compute(rec, kind.resolve(rec, panel_model, levels), levels)
+
+
+# the minimal spec at two levels: a small figure for tests that render several times
+SMALL_SPEC = MINIMAL_SPEC.replace('unit = "u2"\n', 'unit = "u2"\nlevels = [40, 80]\n')

@@ -1,14 +1,18 @@
-"""The CLI in a subprocess: exit codes, one line per problem, no traceback."""
+"""The command line: exit codes, one line per problem, no traceback. Called in-process
+(conftest.run_cli) except where a test must see what a real process prints."""
 
 import subprocess
 import sys
 
+from conftest import run_cli as figspec
 from helpers import MINIMAL_SPEC, SPECS, write_spec
 
 
-def figspec(*args, cwd=None):
-    return subprocess.run([sys.executable, "-m", "figspec", *map(str, args)], capture_output=True,
-                          text=True, cwd=cwd)
+def test_a_real_process_exits_2_with_one_line_and_no_traceback(tmp_path):
+    path = write_spec(tmp_path, MINIMAL_SPEC.replace("bin_ms = 10", "bin_width = 10"))
+    result = subprocess.run([sys.executable, "-m", "figspec", "check", str(path)], capture_output=True, text=True)
+    assert result.returncode == 2
+    assert len(result.stderr.strip().splitlines()) == 1 and "Traceback" not in result.stderr
 
 
 def test_check_good_spec_exits_0(minimal_spec):
@@ -41,12 +45,17 @@ def test_missing_mapped_column_exits_2(tmp_path):
     assert "(got columns: unit, trial, time_s)" in result.stderr
 
 
-def test_render_folder_writes_every_format(tmp_path):
-    result = figspec("render", SPECS, "-o", tmp_path / "out", "--format", "png,svg")
+def test_render_folder_writes_every_spec_in_every_format(demo_render):
+    out, ran = demo_render
+    for spec in SPECS.glob("*.toml"):
+        assert {(out / f"{spec.stem}.{fmt}").is_file() for fmt in ("svg", "pdf", "png")} == {True}
+        assert f"{spec.name}: wrote" in ran.stdout
+
+
+def test_format_option_limits_the_formats(tmp_path, minimal_spec):
+    result = figspec("render", minimal_spec, "-o", tmp_path / "out", "--format", "png")
     assert result.returncode == 0, result.stderr
-    assert (tmp_path / "out" / "level_grid.png").is_file()
-    assert (tmp_path / "out" / "level_grid.svg").is_file()
-    assert not (tmp_path / "out" / "level_grid.pdf").exists()
+    assert (tmp_path / "out" / "spec.png").is_file() and not (tmp_path / "out" / "spec.pdf").exists()
 
 
 def test_bad_format_exits_2(minimal_spec):

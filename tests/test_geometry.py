@@ -57,10 +57,10 @@ def test_no_two_axes_overlap(figure):
 
 
 @pytest.mark.parametrize("spec", DEMOS, ids=[p.stem for p in DEMOS])
-def test_pdf_media_box_is_the_declared_size(spec, tmp_path):
+def test_pdf_media_box_is_the_declared_size(spec, demo_render):
     # PDF user space unit is 1/72 inch (ISO 32000-1, 8.3.2.3)
     model = pipeline.check(spec).spec.model            # width filled in from the style when the spec has none
-    [pdf] = [p for p in pipeline.render(spec, tmp_path, ["pdf"]).files if p.suffix == ".pdf"]
+    pdf = demo_render[0] / f"{spec.stem}.pdf"
     box = [float(v) for v in re.search(rb"/MediaBox\s*\[\s*([\d.\s]+)\]", pdf.read_bytes()).group(1).split()]
     assert (box[2] - box[0]) / 72 * 25.4 == pytest.approx(model.figure.width_mm, abs=0.1)
     assert (box[3] - box[1]) / 72 * 25.4 == pytest.approx(model.figure.height_mm, abs=0.1)

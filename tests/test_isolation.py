@@ -4,12 +4,12 @@ import matplotlib as mpl
 
 from figspec import pipeline
 
-from helpers import MINIMAL_SPEC, write_spec
+from helpers import SMALL_SPEC, write_spec
 
 
 def test_render_a_then_b_then_a_gives_identical_bytes(tmp_path):
-    a = write_spec(tmp_path, MINIMAL_SPEC, "a.toml")
-    b = write_spec(tmp_path, MINIMAL_SPEC.replace('[figure]', '[figure]\nstyle = "projected"'), "b.toml")
+    a = write_spec(tmp_path, SMALL_SPEC, "a.toml")
+    b = write_spec(tmp_path, SMALL_SPEC.replace('[figure]', '[figure]\nstyle = "projected"'), "b.toml")
     before = dict(mpl.rcParams)
     first = pipeline.render(a, tmp_path / "1").files
     pipeline.render(b, tmp_path / "2")

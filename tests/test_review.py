@@ -3,7 +3,6 @@ atomic writes, baseline comparison and spec diffs."""
 
 import hashlib
 import json
-import shutil
 import subprocess
 import sys
 from pathlib import Path
@@ -17,7 +16,8 @@ from figspec import pipeline
 from figspec.spec.style import BUILTIN_STYLES
 from figspec.draw.context import styled
 
-from helpers import DEMO_SPEC, ROOT, SPECS, draw_now, copy_project, demo_text
+from conftest import run_cli as figspec
+from helpers import DEMO_SPEC, ROOT, SMALL_SPEC, SPECS, draw_now, write_spec
 
 DEMOS = sorted(SPECS.glob("*.toml"))
 
@@ -26,18 +26,15 @@ def sha(path: Path) -> str:
     return hashlib.sha256(path.read_bytes()).hexdigest()
 
 
-def figspec(*args, cwd=None):
-    return subprocess.run([sys.executable, "-m", "figspec", *map(str, args)], capture_output=True, text=True, cwd=cwd)
-
-
 @pytest.fixture(scope="module")
-def two_renders(tmp_path_factory):
-    """The demo specs rendered twice, each time in its own process."""
-    out = tmp_path_factory.mktemp("renders")
-    for name in ("a", "b"):
-        result = figspec("render", SPECS, "-o", out / name, cwd=ROOT)
-        assert result.returncode == 0, result.stderr
-    return out / "a", out / "b"
+def two_renders(tmp_path_factory, demo_render):
+    """The demo specs rendered twice: once in this process (the session's render), once in a
+    process of its own, as a user would run the command."""
+    out = tmp_path_factory.mktemp("renders") / "b"
+    result = subprocess.run([sys.executable, "-m", "figspec", "render", str(SPECS), "-o", str(out)],
+                            capture_output=True, text=True, cwd=ROOT)
+    assert result.returncode == 0, result.stderr
+    return demo_render[0], out
 
 
 def test_two_processes_write_identical_bytes(two_renders):
@@ -106,7 +103,8 @@ def test_failed_render_leaves_earlier_outputs_untouched(tmp_path, monkeypatch):
     import figspec.output.files as files
 
     out = tmp_path / "out"
-    pipeline.render(DEMO_SPEC, out)
+    spec = write_spec(tmp_path, SMALL_SPEC, "fig.toml")
+    pipeline.render(spec, out)
     before = {p: p.read_bytes() for p in out.rglob("*") if p.is_file()}
     real = files.os.fdopen
     calls = {"n": 0}
@@ -119,40 +117,38 @@ def test_failed_render_leaves_earlier_outputs_untouched(tmp_path, monkeypatch):
         return real(fd, *args, **kwargs)
 
     monkeypatch.setattr(files.os, "fdopen", failing)
-    changed = tmp_path / "changed.toml"
-    changed.write_text(demo_text("level_grid").replace("bin_ms = 5", "bin_ms = 10"))
-    shutil.copy(changed, tmp_path / "level_grid.toml")
+    spec.write_text(spec.read_text().replace("bin_ms = 10", "bin_ms = 20"))
     with pytest.raises(OSError, match="disk full"):
-        pipeline.render(tmp_path / "level_grid.toml", out)
+        pipeline.render(spec, out)
     after = {p: p.read_bytes() for p in out.rglob("*") if p.is_file()}
     assert after == before                                # nothing replaced, no temporary file left
 
 
-def test_compare_passes_unchanged_and_catches_a_1_ms_bin_change(tmp_path):
-    copy_project(tmp_path)
-    spec = tmp_path / "specs" / "level_grid.toml"
+def test_compare_passes_unchanged_and_catches_a_2_ms_bin_change(tmp_path):
+    spec = write_spec(tmp_path, SMALL_SPEC, "fig.toml")
     assert figspec("snapshot", spec, "--dir", tmp_path / "base").returncode == 0
     same = figspec("compare", spec, "--dir", tmp_path / "base", "-o", tmp_path / "cmp")
-    assert same.returncode == 0 and "level_grid: same" in same.stdout
-    spec.write_text(spec.read_text().replace("bin_ms = 5", "bin_ms = 4"))
+    assert same.returncode == 0 and "fig: same" in same.stdout
+    spec.write_text(spec.read_text().replace("bin_ms = 10", "bin_ms = 8"))
     differs = figspec("compare", spec, "--dir", tmp_path / "base", "-o", tmp_path / "cmp")
-    assert differs.returncode == 3 and "level_grid: DIFFERS: RMS" in differs.stdout
-    assert {"level_grid.new.png", "level_grid.baseline.png", "level_grid.difference.png", "summary.txt"} <= \
+    assert differs.returncode == 3 and "fig: DIFFERS: RMS" in differs.stdout
+    assert {"fig.new.png", "fig.baseline.png", "fig.difference.png", "summary.txt"} <= \
         {p.name for p in (tmp_path / "cmp").iterdir()}
 
 
 def test_diff_against_a_git_revision_reports_the_key_change(tmp_path):
-    copy_project(tmp_path)
+    specs = tmp_path / "specs"
+    specs.mkdir()
+    spec = write_spec(specs, SMALL_SPEC, "fig.toml")
     git = lambda *a: subprocess.run(["git", *a], cwd=tmp_path, capture_output=True, text=True, check=True)  # noqa: E731
     git("init", "-q")
     git("-c", "user.name=t", "-c", "user.email=t@example.org", "add", ".")
     git("-c", "user.name=t", "-c", "user.email=t@example.org", "commit", "-qm", "figures")
-    spec = tmp_path / "specs" / "level_grid.toml"
-    spec.write_text(spec.read_text().replace("bin_ms = 5", "bin_ms = 4"))
+    spec.write_text(spec.read_text().replace("bin_ms = 10", "bin_ms = 8"))
     result = figspec("diff", spec, "--rev", "HEAD", "-o", tmp_path / "d")
     assert result.returncode == 0, result.stderr
-    assert "changed panels[1].bin_ms: 5 -> 4" in result.stdout
-    assert "table rate: 360 -> 450 rows" in result.stdout
-    folder = tmp_path / "d" / "level_grid_diff"
+    assert "changed panels[1].bin_ms: 10 -> 8" in result.stdout
+    assert "table rate: 40 -> 50 rows" in result.stdout           # 2 levels x 20 bins -> 2 x 25
+    folder = tmp_path / "d" / "fig_diff"
     assert {"old.png", "new.png", "side_by_side.png", "difference.png", "summary.txt"} <= {p.name for p in folder.iterdir()}
-    assert not list((tmp_path / "specs").glob(".*.toml"))        # the revision's copy was removed
+    assert not list(specs.glob(".*.toml"))                        # the revision's copy was removed

@@ -115,9 +115,28 @@ def assemble(spikes: pd.DataFrame, trials: pd.DataFrame | None, *, time_unit: st
     if trials is None:
         spikes["level"] = _numeric(spikes["level"], "levels", locs["level"], where)
         trials = trials_from_spikes(spikes, counts, where)
+    trials = _trial_table(trials, scale, where, locs)
+    spikes["trial"], trials["trial"] = _trial_ids(spikes["trial"], trials["trial"])
+    _unique_trials(trials, locs)
+    spikes["unit"] = spikes["unit"].astype(str)
+    per_unit = "unit" in trials
+    units = sorted(set(spikes["unit"]) | (set(trials["unit"]) if per_unit else set()), key=_natural_key)
+    pair_unit, pair_trial = _pairs(trials, units)
+    pair = _pair_of_spikes(spikes, trials, units, pair_unit, pair_trial, where)
+    keep = pair >= 0
+    pair = pair[keep]
+    times = spikes["time"].to_numpy(dtype=float)[keep] - trials["onset_s"].to_numpy(dtype=float)[pair_trial][pair]
+    order = np.lexsort((times, pair))
+    offsets = np.zeros(pair_unit.size + 1, dtype=np.int64)
+    np.cumsum(np.bincount(pair, minlength=pair_unit.size), out=offsets[1:])
+    return Recording(units=tuple(units), trials=trials, pair_unit=pair_unit, pair_trial=pair_trial,
+                     offsets=offsets, times_s=times[order])
+
+
+def _trial_table(trials: pd.DataFrame, scale: float, where: str, locs: dict[str, Loc]) -> pd.DataFrame:
+    """The trial table with numeric levels, onsets and offsets (s), in presentation order."""
     trials = trials.copy()
     trials["level"] = _numeric(trials["level"], "levels", locs["level"], where)
-    spikes["trial"], trials["trial"] = _trial_ids(spikes["trial"], trials["trial"])
     has_onset = "onset" in trials
     trials["onset_s"] = _numeric(trials["onset"], "onsets", locs["onset"], where) * scale if has_onset else 0.0
     if "offset" in trials:
@@ -127,52 +146,50 @@ def assemble(spikes: pd.DataFrame, trials: pd.DataFrame | None, *, time_unit: st
     else:
         trials["stim_stop_s"] = np.nan
     per_unit = "unit" in trials
-    key = ["unit", "trial"] if per_unit else ["trial"]
     if per_unit:
         trials["unit"] = trials["unit"].astype(str)
-    dup = trials.duplicated(key)
-    if dup.any():
-        raise DataError(Problem(f"trial ids must be unique{' per unit' if per_unit else ''} in the trial table",
-                                locs["trial"], repr(trials.loc[dup, "trial"].iloc[0])))
     if has_onset:
         trials = trials.sort_values((["unit"] if per_unit else []) + ["onset_s"], kind="stable")
     keep = ["trial", "level", "onset_s", "stim_stop_s"] + (["unit"] if per_unit else [])
-    trials = trials[keep].reset_index(drop=True)
+    return trials[keep].reset_index(drop=True)
 
-    units = sorted(set(spikes["unit"].astype(str)) | (set(trials["unit"]) if per_unit else set()),
-                   key=_natural_key)
-    unit_index = {u: i for i, u in enumerate(units)}
-    if per_unit:
+
+def _unique_trials(trials: pd.DataFrame, locs: dict[str, Loc]) -> None:
+    per_unit = "unit" in trials
+    dup = trials.duplicated(["unit", "trial"] if per_unit else ["trial"])
+    if dup.any():
+        raise DataError(Problem(f"trial ids must be unique{' per unit' if per_unit else ''} in the trial table",
+                                locs["trial"], repr(trials.loc[dup, "trial"].iloc[0])))
+
+
+def _pairs(trials: pd.DataFrame, units: list[str]) -> tuple[np.ndarray, np.ndarray]:
+    """(unit index, trial row) of every (unit, trial) pair, ordered by unit, then presentation:
+    every unit saw every trial, unless the trial table says which unit each trial belongs to."""
+    if "unit" in trials:
+        unit_index = {u: i for i, u in enumerate(units)}
         pair_unit = trials["unit"].map(unit_index).to_numpy(dtype=np.int64)
         pair_trial = np.arange(len(trials), dtype=np.int64)
         order = np.lexsort((pair_trial, pair_unit))
-        pair_unit, pair_trial = pair_unit[order], pair_trial[order]
-    else:
-        pair_unit = np.repeat(np.arange(len(units), dtype=np.int64), len(trials))
-        pair_trial = np.tile(np.arange(len(trials), dtype=np.int64), len(units))
+        return pair_unit[order], pair_trial[order]
+    return (np.repeat(np.arange(len(units), dtype=np.int64), len(trials)),
+            np.tile(np.arange(len(trials), dtype=np.int64), len(units)))
+
+
+def _pair_of_spikes(spikes: pd.DataFrame, trials: pd.DataFrame, units: list[str], pair_unit: np.ndarray,
+                    pair_trial: np.ndarray, where: str) -> np.ndarray:
+    """For each spike, the index of its (unit, trial) pair; -1 (with a warning) for spikes of
+    trials the trial table does not have."""
     pairs = pd.DataFrame({"unit": np.asarray(units, dtype=object)[pair_unit].astype(str),
-                          "trial": trials["trial"].to_numpy()[pair_trial],
-                          "pair": np.arange(pair_unit.size)})
-    spikes["unit"] = spikes["unit"].astype(str)
-    joined = spikes[["unit", "trial", "time"]].merge(pairs, on=["unit", "trial"], how="left", sort=False)
+                          "trial": trials["trial"].to_numpy()[pair_trial], "pair": np.arange(pair_unit.size)})
+    joined = spikes[["unit", "trial"]].merge(pairs, on=["unit", "trial"], how="left", sort=False)
     lost = joined["pair"].isna()
     if lost.any():
         warnings.warn(f"{where}: {int(lost.sum())} spikes belong to {joined.loc[lost, 'trial'].nunique()} "
                       "trials that are not in the trial table and were left out "
-                      f"(first trial id: {joined.loc[lost, 'trial'].iloc[0]!r})", FigspecWarning, stacklevel=2)
-        joined = joined[~lost]
-    pair = joined["pair"].to_numpy(dtype=np.int64)
-    onset = trials["onset_s"].to_numpy(dtype=float)[pair_trial][pair]
-    times = joined["time"].to_numpy(dtype=float) - onset
-    order = np.lexsort((times, pair))
-    offsets = np.zeros(pair_unit.size + 1, dtype=np.int64)
-    np.cumsum(np.bincount(pair, minlength=pair_unit.size), out=offsets[1:])
-    return Recording(units=tuple(units), trials=trials, pair_unit=pair_unit, pair_trial=pair_trial,
-                     offsets=offsets, times_s=times[order])
+                      f"(first trial id: {joined.loc[lost, 'trial'].iloc[0]!r})", FigspecWarning, stacklevel=3)
+    return joined["pair"].fillna(-1).to_numpy(dtype=np.int64)
 
 
 def _natural_key(name: str) -> tuple:
     """Sort 'u2' before 'u10'."""
-
-
     return tuple(int(p) if p.isdigit() else p for p in re.split(r"(\d+)", name))

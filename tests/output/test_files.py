@@ -9,9 +9,10 @@ from helpers import DEMO_SPEC
 
 
 @pytest.fixture(scope="module")
-def rendered(tmp_path_factory):
-    out = tmp_path_factory.mktemp("out")
-    return out, pipeline.render(DEMO_SPEC, out).files
+def rendered(demo_render):
+    out = demo_render[0]
+    return out, sorted(p for p in out.rglob("*") if p.is_file() and p.name.startswith("level_grid")
+                       or p.parent.name == "level_grid_data")
 
 
 def test_all_formats_and_source_data_are_written(rendered):
@@ -47,13 +48,6 @@ def test_svg_text_is_real_text_and_has_the_declared_size(rendered):
     svg = (out / "level_grid.svg").read_text()
     assert "<text" in svg and "80 dB SPL" in svg
     assert re.search(r'width="518\.74\d*pt"', svg)  # 183 mm = 518.740 pt
-
-
-def test_same_spec_renders_to_the_same_bytes(rendered, tmp_path):
-    out, written = rendered
-    again = pipeline.render(DEMO_SPEC, tmp_path).files
-    for first, second in zip(sorted(written), sorted(again)):
-        assert first.read_bytes() == second.read_bytes(), first.name
 
 
 def test_a_set_that_fails_to_stage_leaves_every_old_file_and_no_temporary(tmp_path):

@@ -1,0 +1,71 @@
+"""Every registered panel kind works through every layer: validated from a spec, computed,
+drawn, written in every format with its source data, legend sentence and statistics rows, and
+read by the colour-vision check. A new kind that breaks another layer fails here."""
+
+import json
+
+import pandas as pd
+import pytest
+
+from figspec import pipeline
+from figspec.registry import PANEL_KINDS
+from figspec.spec.panels import PANEL_MODELS
+
+from helpers import SMALL_SPEC, write_spec
+
+KINDS = sorted(PANEL_KINDS)
+
+
+def test_every_model_of_the_spec_union_has_one_registry_entry():
+    tags = sorted(m.model_fields["kind"].annotation.__args__[0] for m in PANEL_MODELS)
+    assert tags == KINDS
+    assert all(PANEL_KINDS[tag].model is m for tag, m in
+               ((m.model_fields["kind"].annotation.__args__[0], m) for m in PANEL_MODELS))
+
+
+def spec_with_every_kind() -> str:
+    """The small spec with one more panel per registered kind, each with only its required keys."""
+    text = SMALL_SPEC.replace("[stimulus]", '[levels]\nquantity = "Sound level"\nunit = "dB SPL"\n'
+                                            'scale = "pressure_db"\n\n[stimulus]')
+    text = text.replace("width_mm = 100", "width_mm = 183").replace("height_mm = 120", "height_mm = 160")
+    columns = len(KINDS) // 2 + 2
+    text = text.replace("[stimulus]", f"[layout]\nrows = 2\ncolumns = {columns}\n\n[stimulus]")
+    text = text.replace('name = "spikes"', 'name = "spikes"\ncell = [1, 1]\nspan = [2, 1]')
+    text = text.replace('name = "rate"', 'name = "rate"\ncell = [1, 2]\nspan = [2, 1]')
+    for i, kind in enumerate(KINDS):
+        text += f'\n[[panels]]\nname = "every_{kind}"\nkind = "{kind}"\nunit = "u2"\ncell = [{i % 2 + 1}, {i // 2 + 3}]\n'
+    return text
+
+
+@pytest.fixture(scope="module")
+def rendered(tmp_path_factory):
+    folder = tmp_path_factory.mktemp("kinds")
+    result = pipeline.render(write_spec(folder, spec_with_every_kind()), folder / "out", profile="nature")
+    return folder / "out", result
+
+
+def test_every_kind_renders_every_format(rendered):
+    out, result = rendered
+    assert {p.name for p in result.files} >= {"spec.svg", "spec.pdf", "spec.png"}
+    assert all((out / f"spec.{fmt}").stat().st_size > 1000 for fmt in ("svg", "pdf", "png"))
+
+
+@pytest.mark.parametrize("kind", KINDS)
+def test_every_kind_writes_source_data_a_legend_sentence_and_statistics(rendered, kind):
+    out, _ = rendered
+    data = out / "spec_data"
+    tables = [p for p in data.glob(f"every_{kind}*.csv")]
+    assert tables and all(len(pd.read_csv(p).columns) > 1 for p in tables)
+    legend = (data / "legend.md").read_text().splitlines()
+    assert sum(line.startswith(f"- *every_{kind}*:") for line in legend) == 1
+    stats = pd.read_csv(data / "statistics.csv")
+    trials = stats[(stats["panel"] == f"every_{kind}") & (stats["quantity"] == "n_trials")]
+    assert sorted(trials["level"]) == list(range(0, 90, 10)) and set(trials["value"]) == {30}
+    resolved = json.loads((data / "manifest.json").read_text())["parameters"]["panels_resolved"]
+    assert [p["unit"] for p in resolved if p["name"] == f"every_{kind}"] == ["u2"]
+
+
+def test_the_journal_check_reads_every_kind(rendered):
+    _, result = rendered
+    assert result.profile is not None
+    assert all(f.panel != "figure" or f.rule in ("width", "height") for f in result.findings)

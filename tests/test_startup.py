@@ -1,0 +1,14 @@
+"""`figspec check` starts fast: it needs neither matplotlib nor scipy, so it imports neither.
+A fresh process is the only way to see what importing figspec pulls in."""
+
+import subprocess
+import sys
+
+from helpers import DEMO_SPEC, ROOT
+
+
+def test_check_imports_neither_matplotlib_nor_scipy():
+    code = ("import sys; from figspec.cli import run; code = run(['check', sys.argv[1]]); "
+            "print(code, 'matplotlib' in sys.modules, 'scipy' in sys.modules)")
+    out = subprocess.run([sys.executable, "-c", code, str(DEMO_SPEC)], capture_output=True, text=True, cwd=ROOT)
+    assert out.stdout.strip().splitlines()[-1] == "0 False False", out.stderr
