@@ -28,7 +28,7 @@ def spec_with_every_kind() -> str:
     text = SMALL_SPEC.replace("[stimulus]", '[levels]\nquantity = "Sound level"\nunit = "dB SPL"\n'
                                             'scale = "pressure_db"\n\n[stimulus]')
     text = text.replace("width_mm = 100", "width_mm = 183").replace("height_mm = 120", "height_mm = 160")
-    columns = len(KINDS) // 2 + 2
+    columns = (len(KINDS) + 1) // 2 + 2      # raster and rate, then two kinds per column
     text = text.replace("[stimulus]", f"[layout]\nrows = 2\ncolumns = {columns}\n\n[stimulus]")
     text = text.replace('name = "spikes"', 'name = "spikes"\ncell = [1, 1]\nspan = [2, 1]')
     text = text.replace('name = "rate"', 'name = "rate"\ncell = [1, 2]\nspan = [2, 1]')
