@@ -16,14 +16,12 @@ import time
 import numpy as np
 import pandas as pd
 
-from figspec.compute.summary import latency_tables, level_response_tables
 from figspec.data.assemble import TrialCounts, assemble
+from figspec.registry import kind_of
 from figspec.spec.models import LevelSpec
 from figspec.spec.panels import LatencyPanel, LevelResponsePanel, PsthPanel, RasterPanel
 
 LEVELS = np.arange(0.0, 81.0, 10.0)
-
-from helpers import compute_panel
 
 
 def recording(n_spikes: int, trials_per_level: int, seed: int = 3):
@@ -41,14 +39,19 @@ def recording(n_spikes: int, trials_per_level: int, seed: int = 3):
     return assemble(spikes, trials, time_unit="s", where="bench", locs=locs, counts=TrialCounts(None, ()))
 
 
+PANELS = [RasterPanel(name="r", kind="raster", unit="u1"),
+          PsthPanel(name="p", kind="psth", unit="u1", bin_ms=1),
+          LatencyPanel(name="l", kind="latency", unit="u1", response_ms=(0, 60)),
+          LevelResponsePanel(name="v", kind="level_response", unit="u1", response_ms=(0, 60),
+                             baseline_ms=(-60, 0), fit="naka_rushton")]
+
+
 def compute_all(rec) -> None:
-    compute_panel(rec, RasterPanel(name="r", kind="raster", unit="u1"))
-    compute_panel(rec, PsthPanel(name="p", kind="psth", unit="u1", bin_ms=1))
+    """Every panel's tables through its registry entry, as the pipeline computes them."""
     levels = LevelSpec(unit="dB SPL", scale="pressure_db")
-    latency_tables(rec, LatencyPanel(name="l", kind="latency", unit="u1", response_ms=(0, 60)), levels)
-    level_response_tables(rec, LevelResponsePanel(name="v", kind="level_response", unit="u1",
-                                                   response_ms=(0, 60), baseline_ms=(-60, 0),
-                                                   fit="naka_rushton"), levels)
+    for panel in PANELS:
+        kind = kind_of(panel)
+        kind.compute(rec, kind.resolve(rec, panel, levels), levels)
 
 
 def main() -> None:
