@@ -45,8 +45,6 @@ def resolve(rec: Recording, panel: PsthPanel, levels: LevelSpec) -> PsthPanel:
 def resolve_widths(sels: list[Selection], panel: PsthPanel) -> tuple[float, float | None]:
     """The bin width and kernel width (ms) to use, choosing 'auto' ones from the units' data."""
     bin_ms = panel.bin_ms
-    if bin_ms != "auto" and panel.kernel_ms != "auto":
-        return float(bin_ms), panel.kernel_ms
     groups = [g for sel in sels for g in level_spike_times(sel)]
     if bin_ms == "auto":
         choice = choose_bin_width(groups, panel.window_ms, panel.bin_search_ms)
@@ -71,7 +69,7 @@ def resolve_widths(sels: list[Selection], panel: PsthPanel) -> tuple[float, floa
 
 
 def unit_rates(sel: Selection, unit: str, panel: PsthPanel, bin_ms: float, kernel_ms: float | None) -> pd.DataFrame:
-    """One unit's PSTH table (see :func:`psth_table`) from its selected trials and spikes."""
+    """One unit's PSTH table (see :func:`compute`) from its selected trials and spikes."""
     edges = bin_edges(panel.window_ms, bin_ms)
     n_bins = edges.size - 1
     levels, n_trials, counts = sel.levels, sel.n_trials, level_bin_counts(sel, edges)
