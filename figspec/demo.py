@@ -7,7 +7,7 @@ Regenerate the bundled files with::
     python -m figspec.demo specs/data
 
 Model: 270 trials (9 levels from 0 to 80 dB SPL, 30 each) in a shuffled order, one every
-600 ms, each with a 50-ms noise burst. Each unit fires as an inhomogeneous Poisson process
+600 ms (``start_s`` to ``stop_s``), each with a 50-ms noise burst about 200 ms after the start. Each unit fires as an inhomogeneous Poisson process
 (0.1-ms Bernoulli steps): spontaneous rate everywhere, plus an evoked rate that rises with
 level as a logistic function and saturates, starting after a first-spike latency that
 shortens with level, with an onset transient decaying to a sustained part. Weak units at
@@ -45,7 +45,8 @@ def trial_table(rng: np.random.Generator) -> pd.DataFrame:
     start = np.arange(levels.size) * PERIOD_S
     onset = start + PRE_S + rng.uniform(0.0, 0.010, levels.size)
     return pd.DataFrame({"trial": np.arange(1, levels.size + 1), "level_db": levels,
-                         "onset_s": onset.round(6), "offset_s": (onset + BURST_S).round(6)})
+                         "onset_s": onset.round(6), "offset_s": (onset + BURST_S).round(6),
+                         "start_s": start.round(6), "stop_s": (start + PERIOD_S).round(6)})
 
 
 def unit_spikes(rng: np.random.Generator, trials: pd.DataFrame, unit: tuple) -> pd.DataFrame:

@@ -8,7 +8,10 @@ from types import ModuleType
 
 from figspec.errors import DataError, Loc, Problem
 
-EXTRAS: dict[str, str] = {}   # importable module -> the extra of pyproject.toml that installs it
+EXTRAS: dict[str, str] = {   # importable module -> the extra of pyproject.toml that installs it
+    "pyarrow.parquet": "parquet",
+    "pynwb": "nwb",
+}
 
 
 def require(module: str, feature: str, loc: Loc = ()) -> ModuleType:

@@ -13,14 +13,13 @@ DEMO_SPEC = SPECS / "level_grid.toml"
 
 def build_recording(spikes: list[tuple], trials: list[tuple], time_unit: str = "s"):
     """A recording from ``spikes`` = [(unit, trial, time)] and ``trials`` = [(trial, level, onset,
-    offset)], through the same assembly every source uses."""
-    from figspec.data.assemble import TrialCounts, assemble
+    offset)] on one session clock, through the same assembly every source uses."""
+    from figspec.data.assemble import Layout, assemble
 
-    spike_frame = pd.DataFrame(spikes, columns=["unit", "trial", "time"]).astype({"unit": str})
-    trial_frame = pd.DataFrame(trials, columns=["trial", "level", "onset", "offset"])
-    locs = {k: ("sources", "t", k) for k in ("unit", "trial", "time", "level", "onset", "offset")}
-    return assemble(spike_frame, trial_frame, time_unit=time_unit, where="test", locs=locs,
-                    counts=TrialCounts(None, ("sources", "t")))
+    spike_frame = pd.DataFrame(spikes, columns=["unit", "key0", "time"]).astype({"unit": str})
+    trial_frame = pd.DataFrame(trials, columns=["key0", "level", "onset", "offset"])
+    locs = {k: ("sources", "t", k) for k in ("unit", "key0", "time", "level", "onset", "offset")}
+    return assemble(spike_frame, trial_frame, Layout(where="test", locs=locs, time_unit=time_unit, clock="session"))
 
 
 def panel(kind: str, **keys):
@@ -70,7 +69,9 @@ per_trial = true
 spikes = "@DATA@/spikes.csv"
 trials = "@DATA@/trials.csv"
 spike_columns = { unit = "unit", trial = "trial", time = "time_s" }
-trial_columns = { trial = "trial", level = "level_db", onset = "onset_s", offset = "offset_s" }
+clock = "session"
+trial_columns = { trial = "trial", level = "level_db", onset = "onset_s", offset = "offset_s",
+                  start = "start_s", stop = "stop_s" }
 
 [[panels]]
 name = "spikes"

@@ -67,7 +67,8 @@ def test_inferred_trials_warn_on_stderr(tmp_path):
     text = MINIMAL_SPEC.replace('trials = "@DATA@/trials.csv"\n', "").replace(
         'spike_columns = { unit = "unit", trial = "trial", time = "time_s" }',
         'spike_columns = { unit = "unit", trial = "trial", time = "time_s", level = "level_db" }')
-    text = text.replace("trial_columns = {", "# trial_columns = {").replace("per_trial = true",
+    text = text.replace('clock = "session"\ntrial_columns = {', "# trial_columns = {").replace(
+        '                  start = "start_s"', '#                  start = "start_s"').replace("per_trial = true",
                                                                             "start_ms = 0\nstop_ms = 50")
     data = tmp_path / "spikes.csv"
     import pandas as pd
@@ -99,8 +100,8 @@ def test_response_window_outside_the_trial_exits_2(tmp_path):
     text = SUMMARY.replace('fit = "naka_rushton"', 'fit = "naka_rushton"\nresponse_ms = [0, 800]\nbaseline_ms = [-800, 0]')
     result = figspec("check", write_spec(tmp_path, text))
     assert result.returncode == 2 and "Traceback" not in result.stderr
-    assert "panels[2].response_ms: reaches outside the trial" in result.stderr
-    assert "panels[2].baseline_ms: reaches outside the trial" in result.stderr
+    assert "panels[2].response_ms: reaches past what was recorded of 270 of 270 trials shown" in result.stderr
+    assert "panels[2].baseline_ms: reaches past what was recorded of 270 of 270 trials shown" in result.stderr
 
 
 def test_fit_on_fewer_levels_than_parameters_exits_2(tmp_path):

@@ -28,7 +28,8 @@ class Selection:
     trial_level : for each row of ``trials``, its index into ``levels``.
     n_trials : trials presented at each of ``levels``.
     spike_trial : for each selected spike, its row index in ``trials``.
-    time_ms : spike times relative to stimulus onset (ms), inside ``[start, stop)``.
+    ticks : spike times relative to the alignment event (integer ticks), inside ``[start, stop)``.
+    ticks_per_ms : the recording's tick.
     """
 
     trials: pd.DataFrame
@@ -36,11 +37,21 @@ class Selection:
     trial_level: np.ndarray
     n_trials: np.ndarray
     spike_trial: np.ndarray
-    time_ms: np.ndarray
+    ticks: np.ndarray
+    ticks_per_ms: int
+
+    @property
+    def time_ms(self) -> np.ndarray:
+        """Spike times in ms (float, for tables and drawing)."""
+        return self.ticks / self.ticks_per_ms
+
+    def to_ticks(self, ms) -> np.ndarray:
+        return np.rint(np.asarray(ms, dtype=float) * self.ticks_per_ms).astype(np.int64)
 
     def inside(self, window_ms: tuple[float, float]) -> np.ndarray:
-        """Mask of the selected spikes in ``[start, stop)`` (ms)."""
-        return (self.time_ms >= window_ms[0]) & (self.time_ms < window_ms[1])
+        """Mask of the selected spikes in ``[start, stop)`` (ms), compared in whole ticks."""
+        lo, hi = self.to_ticks(window_ms)
+        return (self.ticks >= lo) & (self.ticks < hi)
 
     def spike_level(self) -> np.ndarray:
         """For each selected spike, the index of its trial's level into ``levels``."""
@@ -65,10 +76,10 @@ def select(rec: Recording, unit: str, window_ms: tuple[float, float],
     row_of_pair = np.full(rec.n_pairs, -1, dtype=np.int64)
     row_of_pair[pairs] = np.arange(pairs.size)
     spike_trial = row_of_pair[rec.spike_pair()]
-    time_ms = rec.times_s * 1e3
-    inside = (spike_trial >= 0) & (time_ms >= window_ms[0]) & (time_ms < window_ms[1])
+    lo, hi = rec.to_ticks(window_ms)
+    inside = (spike_trial >= 0) & (rec.ticks >= lo) & (rec.ticks < hi)
     return Selection(trials=trials, levels=values, trial_level=inverse.reshape(-1), n_trials=counts,
-                     spike_trial=spike_trial[inside], time_ms=time_ms[inside])
+                     spike_trial=spike_trial[inside], ticks=rec.ticks[inside], ticks_per_ms=rec.ticks_per_ms)
 
 
 def spanning(*windows: tuple[float, float]) -> tuple[float, float]:

@@ -21,22 +21,29 @@ def stimulus_table(rec: Recording, unit: str, stimulus: StimulusSpec, levels=Non
     -------
     unit, level : as elsewhere.
     n_trials : trials presented at the level.
-    start_ms : stimulus start (ms from the alignment point).
+    start_ms, start_max_ms : earliest and latest stimulus start across the level's trials (ms
+        from the alignment event; they differ when trials are aligned to another event).
     stop_min_ms, stop_max_ms : earliest and latest stimulus stop across the level's trials.
     """
     sel = select(rec, unit, (0.0, 0.0), levels)     # trials only: an empty window holds no spike
     n = sel.levels.size
     if stimulus.per_trial:
         trial_rows = rec.pair_trial[sel.trials["pair"].to_numpy()]
-        stop = rec.trials["stim_stop_s"].to_numpy(dtype=float)[trial_rows] * 1e3
-        stop = np.round(stop, 6)  # clock arithmetic leaves 49.999999999 next to 50
-        stop_min = np.full(n, np.inf)
-        stop_max = np.full(n, -np.inf)
-        np.minimum.at(stop_min, sel.trial_level, stop)
-        np.maximum.at(stop_max, sel.trial_level, stop)
-        start = np.zeros(n)
+        starts = rec.trials["stim_start_ms"].to_numpy(dtype=float)[trial_rows]
+        start = _per_level(starts, sel.trial_level, n, np.minimum)
+        start_max = _per_level(starts, sel.trial_level, n, np.maximum)
+        stop = rec.trials["stim_stop_ms"].to_numpy(dtype=float)[trial_rows]
+        stop_min = _per_level(stop, sel.trial_level, n, np.minimum)
+        stop_max = _per_level(stop, sel.trial_level, n, np.maximum)
     else:
-        start = np.full(n, float(stimulus.start_ms))
+        start = start_max = np.full(n, float(stimulus.start_ms))
         stop_min = stop_max = np.full(n, float(stimulus.stop_ms))
     return pd.DataFrame({"unit": unit, "level": sel.levels, "n_trials": sel.n_trials, "start_ms": start,
+                         "start_max_ms": start_max,
                          "stop_min_ms": stop_min, "stop_max_ms": stop_max})
+
+
+def _per_level(values: np.ndarray, level: np.ndarray, n: int, pick) -> np.ndarray:
+    out = np.full(n, np.inf if pick is np.minimum else -np.inf)
+    pick.at(out, level, values)
+    return out

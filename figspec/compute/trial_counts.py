@@ -17,9 +17,9 @@ def level_bin_counts(sel: Selection, edges: np.ndarray) -> np.ndarray:
     """Spike counts per level (rows, as ``sel.levels``) and bin ``[edges[i], edges[i+1])`` (ms),
     summed over each level's trials."""
     n_bins = edges.size - 1
-    inside = sel.inside((edges[0], edges[-1]))
-    bins = np.searchsorted(edges, sel.time_ms[inside], side="right") - 1
-    bins = np.clip(bins, 0, n_bins - 1)  # guards round-off at the edges
+    tick_edges = sel.to_ticks(edges)                 # whole ticks: a spike on an edge is in the bin it starts
+    inside = (sel.ticks >= tick_edges[0]) & (sel.ticks < tick_edges[-1])
+    bins = np.searchsorted(tick_edges, sel.ticks[inside], side="right") - 1
     flat = sel.spike_level()[inside] * n_bins + bins
     return np.bincount(flat, minlength=sel.levels.size * n_bins).reshape(sel.levels.size, n_bins)
 
@@ -36,7 +36,7 @@ def first_spikes(sel: Selection, window_ms: tuple[float, float]) -> np.ndarray:
     """Time (ms) of each selected trial's first spike in ``[start, stop)``; NaN for a trial
     with no spike there (never zero)."""
     inside = sel.inside(window_ms)
-    first = np.full(len(sel.trials), np.inf)
-    np.minimum.at(first, sel.spike_trial[inside], sel.time_ms[inside])
-    first[np.isinf(first)] = np.nan
-    return first
+    big = np.iinfo(np.int64).max
+    first = np.full(len(sel.trials), big, dtype=np.int64)
+    np.minimum.at(first, sel.spike_trial[inside], sel.ticks[inside])
+    return np.where(first == big, np.nan, first / sel.ticks_per_ms)

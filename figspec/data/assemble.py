@@ -1,173 +1,220 @@
 """Build a :class:`Recording` from canonical spike and trial frames, whatever their source.
 
 Sources (CSV, Parquet, NWB ...) only read their format and rename columns to the canonical
-names below; everything about trials, units and alignment happens here, once.
+names of :mod:`figspec.data.columns`; everything about trials, clocks, alignment and units
+happens here, once. Times become integer ticks as they are read (``np.rint(t * ticks per
+unit)``), so alignment subtracts integers.
 
-Canonical spike frame: ``unit`` (str), ``trial``, ``time`` (in the source's time unit) and,
-when there is no trial table, ``level``. Canonical trial frame: ``trial``, ``level`` and
-optionally ``onset``, ``offset`` (same clock and unit as spike times) and ``unit``.
+Canonical spike frame: ``time``, ``unit`` (unless the source names its one unit), ``key0`` ...
+(the trial key; absent when spikes are assigned to trials by time) and, without a trial table,
+``level``. Canonical trial frame: ``key0`` ..., ``level`` and optionally ``onset``, ``offset``,
+``start``, ``stop``, ``event:NAME``, ``unit`` and ``where:COLUMN``.
+
+Clocks (``Layout.clock``): ``aligned``, spike times are already relative to the alignment
+event; ``trial``, spikes and events are relative to each trial's start; ``session``, one clock
+for the whole recording. Presentation order is the order of trial start (else of the alignment
+event) on a session clock, and the trial table's row order otherwise.
 """
 
 from __future__ import annotations
 
 import re
-import warnings
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
 
+from figspec.data.by_time import assign_by_time
+from figspec.data.keep import select_trials, shown
 from figspec.data.recording import Recording
-from figspec.errors import DataError, FigspecWarning, Loc, Problem
+from figspec.data.trials_from_spikes import TrialCounts, trials_from_spikes
+from figspec.errors import DataError, Loc, Problem
+from figspec.spec.selection import TrialSelection
 
 SECONDS_PER = {"s": 1.0, "ms": 1e-3}
+LARGEST_TICK = 2 ** 62          # times beyond this many ticks cannot be held exactly
+
+__all__ = ["Layout", "TrialCounts", "assemble"]
 
 
 @dataclass(frozen=True)
-class TrialCounts:
-    """What the spec says about trials when there is no trial table."""
+class Layout:
+    """How a source's times and trials are laid out (from its spec), and where to point messages."""
 
-    per_level: int | dict[str, int] | None
-    loc: Loc
+    where: str
+    locs: dict[str, Loc]
+    time_unit: str = "s"
+    clock: str = "aligned"
+    align: str = "onset"                 # "onset" or an event name
+    assign: str = "by_key"
+    ticks_per_second: int = 1_000_000
+    extent_ms: tuple[float, float] | None = None
+    keep: TrialSelection = field(default_factory=TrialSelection)
+    keep_loc: Loc = ()
+    counts: TrialCounts = field(default_factory=lambda: TrialCounts(None, ()))
+
+    @property
+    def ticks_per_ms(self) -> int:
+        return self.ticks_per_second // 1000
+
+    @property
+    def align_column(self) -> str:
+        return "onset" if self.align == "onset" else f"event:{self.align}"
 
 
-def _numeric(values: pd.Series, what: str, loc: Loc, where: str) -> np.ndarray:
+def to_ticks(values: pd.Series, layout: Layout, what: str, name: str) -> np.ndarray:
+    """Times in the layout's time unit as int64 ticks; every value must be a finite number."""
+    loc = layout.locs.get(name, ())
+    numbers = pd.to_numeric(values, errors="coerce").to_numpy(dtype=float)
+    bad = ~np.isfinite(numbers)
+    if bad.any():
+        first = values[bad].iloc[0]
+        raise DataError(Problem(f"{what} must be finite numbers in every row of {layout.where}; "
+                                f"{int(bad.sum())} rows are not", loc, "an empty field" if pd.isna(first) else shown(first)))
+    scaled = numbers * (layout.ticks_per_second * SECONDS_PER[layout.time_unit])
+    if np.any(np.abs(scaled) >= LARGEST_TICK):
+        raise DataError(Problem(f"{what} are too large to hold in {1e6 / layout.ticks_per_second:g}-µs ticks "
+                                f"(is time_unit = {layout.time_unit!r} right?)", loc, shown(numbers[np.argmax(np.abs(scaled))])))
+    return np.rint(scaled).astype(np.int64)
+
+
+def _numbers(values: pd.Series, what: str, loc: Loc, where: str) -> np.ndarray:
     out = pd.to_numeric(values, errors="coerce").to_numpy(dtype=float)
-    bad = np.isnan(out) & values.notna().to_numpy()
-    missing = values.isna().to_numpy()
-    if bad.any() or missing.any():
-        first = values[bad | missing].iloc[0]
-        raise DataError(Problem(f"{what} must be numbers in every row of {where}; "
-                                f"{int((bad | missing).sum())} rows are not", loc, repr(first)))
+    bad = ~np.isfinite(out)
+    if bad.any():
+        first = values[bad].iloc[0]
+        raise DataError(Problem(f"{what} must be finite numbers in every row of {where}; {int(bad.sum())} rows "
+                                "are not", loc, "an empty field" if pd.isna(first) else shown(first)))
     return out
 
 
-def _trial_ids(*series: pd.Series) -> list[pd.Series]:
-    """Trial ids as integers when every table holds integers, otherwise as strings."""
-    numeric = [pd.to_numeric(s, errors="coerce") for s in series]
-    if all(n.notna().all() and (n == n.round()).all() for n in numeric):
-        return [n.astype("int64") for n in numeric]
-    return [s.astype(str) for s in series]
+def _key_columns(frame: pd.DataFrame) -> list[str]:
+    return sorted((c for c in frame.columns if re.fullmatch(r"key\d+", c)), key=lambda c: int(c[3:]))
 
 
-def trials_from_spikes(spikes: pd.DataFrame, counts: TrialCounts, where: str) -> pd.DataFrame:
-    """Rebuild a trial table from a spike table that carries levels.
-
-    With ``counts.per_level`` the missing trials (those without a spike) are added as empty
-    trials; without it a loud warning says they cannot be seen.
-    """
-    seen = spikes[["trial", "level"]].drop_duplicates("trial")
-    if (spikes.groupby("trial")["level"].nunique() > 1).any():
-        raise DataError(Problem("a trial has more than one level in the spike table", counts.loc, where))
-    seen = seen.sort_values(["level", "trial"], kind="stable")
-    if counts.per_level is None:
-        warnings.warn(
-            f"{where}: no trial table and no trials_per_level: trials are inferred from the spikes, "
-            "so trials without any spike are missing and rates are too high. "
-            "Give a trial table or trials_per_level.", FigspecWarning, stacklevel=2)
-        return seen.reset_index(drop=True)
-    frames = [seen]
-    for level, group in seen.groupby("level", sort=True):
-        declared = _declared(counts, float(level))
-        if declared is None:
-            raise DataError(Problem(f"no trial count declared for level {level:g}", counts.loc))
-        if len(group) > declared:
-            raise DataError(Problem(f"level {level:g} has spikes in {len(group)} trials, more than the "
-                                    f"{declared} declared", counts.loc))
-        extra = declared - len(group)
-        frames.append(pd.DataFrame({"trial": [f"empty-{level:g}-{i + 1}" for i in range(extra)],
-                                    "level": float(level)}))
-    if isinstance(counts.per_level, dict):
-        for key in counts.per_level:
-            if float(key) not in set(seen["level"].astype(float)):
-                n = counts.per_level[key]
-                frames.append(pd.DataFrame({"trial": [f"empty-{float(key):g}-{i + 1}" for i in range(n)],
-                                            "level": float(key)}))
-    out = pd.concat(frames, ignore_index=True)
-    out["trial"] = out["trial"].astype(str)
-    return out.sort_values("level", kind="stable").reset_index(drop=True)
+def normalise_keys(spikes: pd.DataFrame | None, trials: pd.DataFrame, keys: list[str]) -> None:
+    """Each key column as integers when every value in both tables is a whole number, else as
+    strings (in place)."""
+    for key in keys:
+        series = [trials[key]] + ([spikes[key]] if spikes is not None and key in spikes else [])
+        numeric = [pd.to_numeric(s, errors="coerce") for s in series]
+        whole = all(n.notna().all() and (n == n.round()).all() for n in numeric)
+        converted = [n.astype("int64") if whole else s.astype(str).str.strip() for n, s in zip(numeric, series)]
+        trials[key] = converted[0]
+        if len(converted) > 1:
+            spikes[key] = converted[1]
 
 
-def _declared(counts: TrialCounts, level: float) -> int | None:
-    if isinstance(counts.per_level, int):
-        return counts.per_level
-    for key, n in (counts.per_level or {}).items():
-        if float(key) == level:
-            return n
-    return None
-
-
-def assemble(spikes: pd.DataFrame, trials: pd.DataFrame | None, *, time_unit: str,
-             where: str, locs: dict[str, Loc], counts: TrialCounts) -> Recording:
-    """Build a :class:`Recording` (see module docstring for the frames).
-
-    Parameters
-    ----------
-    spikes, trials : canonical frames; ``trials`` is None when the source has no trial table.
-    time_unit : ``"s"`` or ``"ms"``, the unit of ``time``, ``onset`` and ``offset``.
-    where : a description of the source for messages (file names).
-    locs : key path of each canonical column's mapping in the spec, for messages.
-    counts : trials per level when there is no trial table.
-    """
-    scale = SECONDS_PER[time_unit]
+def assemble(spikes: pd.DataFrame, trials: pd.DataFrame | None, layout: Layout) -> Recording:
+    """Build a :class:`Recording` from canonical frames laid out as ``layout`` says."""
     spikes = spikes.copy()
-    spikes["time"] = _numeric(spikes["time"], "spike times", locs["time"], where) * scale
+    if "unit" in spikes and spikes["unit"].isna().any():
+        raise DataError(Problem(f"the unit column is empty in {int(spikes['unit'].isna().sum())} rows of "
+                                f"{layout.where}", layout.locs.get("unit", ()), "an empty field"))
+    spike_t = to_ticks(spikes["time"], layout, "spike times", "time")
     if trials is None:
-        spikes["level"] = _numeric(spikes["level"], "levels", locs["level"], where)
-        trials = trials_from_spikes(spikes, counts, where)
-    trials = _trial_table(trials, scale, where, locs)
-    spikes["trial"], trials["trial"] = _trial_ids(spikes["trial"], trials["trial"])
-    _unique_trials(trials, locs)
+        spikes["level"] = _numbers(spikes["level"], "levels", layout.locs.get("level", ()), layout.where)
+        trials = trials_from_spikes(spikes, _key_columns(spikes), layout.counts, layout.where)
+    keys = _key_columns(trials)
+    normalise_keys(spikes, trials := trials.copy(), keys)
+    table, times = trial_table(trials, keys, layout)
+    keep, removed = select_trials(table, keys, layout.keep, layout.keep_loc)
     spikes["unit"] = spikes["unit"].astype(str)
-    per_unit = "unit" in trials
-    units = sorted(set(spikes["unit"]) | (set(trials["unit"]) if per_unit else set()), key=_natural_key)
-    pair_unit, pair_trial = _pairs(trials, units)
-    pair = _pair_of_spikes(spikes, trials, units, pair_unit, pair_trial, where)
-    keep = pair >= 0
-    pair = pair[keep]
-    times = spikes["time"].to_numpy(dtype=float)[keep] - trials["onset_s"].to_numpy(dtype=float)[pair_trial][pair]
-    order = np.lexsort((times, pair))
+    per_unit = "unit" in table
+    units = sorted(set(spikes["unit"]) | (set(table["unit"]) if per_unit else set()), key=natural_key)
+    pair_unit, pair_trial = pairs(table, units)
+    if layout.assign == "by_time":
+        pair, outside = assign_by_time(spike_t, spikes["unit"], units, table, times, layout)
+        removed += (("spikes outside every trial", outside),) if outside else ()
+        spike_t, pair = spike_t[pair >= 0], pair[pair >= 0]
+    else:
+        pair = pair_of_spikes(spikes, table, keys, units, pair_unit, pair_trial, layout)
+    align = times["align"][pair_trial][pair] if layout.clock != "aligned" else 0
+    ticks = spike_t - align
+    order = np.lexsort((ticks, pair))
     offsets = np.zeros(pair_unit.size + 1, dtype=np.int64)
     np.cumsum(np.bincount(pair, minlength=pair_unit.size), out=offsets[1:])
-    return Recording(units=tuple(units), trials=trials, pair_unit=pair_unit, pair_trial=pair_trial,
-                     offsets=offsets, times_s=times[order])
+    shown_cols = ["trial", "level", "stim_start_ms", "stim_stop_ms", "extent_lo_ms", "extent_hi_ms"]
+    shown_cols += (["unit"] if per_unit else []) + [c for c in table if c.startswith("where:")]
+    rec = Recording(units=tuple(units), trials=table[shown_cols], pair_unit=pair_unit, pair_trial=pair_trial,
+                    offsets=offsets, ticks=ticks[order], ticks_per_ms=layout.ticks_per_ms)
+    return rec.keep_trials(keep, removed)
 
 
-def _trial_table(trials: pd.DataFrame, scale: float, where: str, locs: dict[str, Loc]) -> pd.DataFrame:
-    """The trial table with numeric levels, onsets and offsets (s), in presentation order."""
+def trial_table(trials: pd.DataFrame, keys: list[str], layout: Layout) -> tuple[pd.DataFrame, dict]:
+    """The trial table in presentation order with its display columns, and its event times in
+    ticks (``align``, and ``start``/``stop`` on the data's clock when given)."""
+    locs, where = layout.locs, layout.where
     trials = trials.copy()
-    trials["level"] = _numeric(trials["level"], "levels", locs["level"], where)
-    has_onset = "onset" in trials
-    trials["onset_s"] = _numeric(trials["onset"], "onsets", locs["onset"], where) * scale if has_onset else 0.0
-    if "offset" in trials:
-        trials["stim_stop_s"] = _numeric(trials["offset"], "offsets", locs["offset"], where) * scale - trials["onset_s"]
-        if (trials["stim_stop_s"] <= 0).any():
-            raise DataError(Problem("every stimulus offset must come after its onset", locs["offset"], where))
+    trials["level"] = _numbers(trials["level"], "levels", locs.get("level", ()), where)
+    ticks = {name: to_ticks(trials[name], layout, f"{name} times", name)
+             for name in ("onset", "offset", "start", "stop") if name in trials}
+    ticks.update({c: to_ticks(trials[c], layout, f"{c[6:]} times", c) for c in trials if c.startswith("event:")})
+    align = ticks.get(layout.align_column, np.zeros(len(trials), dtype=np.int64))
+    order = _presentation_order(trials, ticks, align, layout)
+    trials = trials.iloc[order].reset_index(drop=True)
+    ticks = {k: v[order] for k, v in ticks.items()}
+    align = align[order]
+    per_ms = layout.ticks_per_ms
+    onset = ticks.get("onset", align)
+    trials["stim_start_ms"] = (onset - align) / per_ms
+    if "offset" in ticks:
+        if np.any(ticks["offset"] <= onset):
+            raise DataError(Problem("every stimulus offset must come after its onset", locs.get("offset", ()), where))
+        trials["stim_stop_ms"] = (ticks["offset"] - align) / per_ms
     else:
-        trials["stim_stop_s"] = np.nan
-    per_unit = "unit" in trials
-    if per_unit:
-        trials["unit"] = trials["unit"].astype(str)
-    if has_onset:
-        trials = trials.sort_values((["unit"] if per_unit else []) + ["onset_s"], kind="stable")
-    keep = ["trial", "level", "onset_s", "stim_stop_s"] + (["unit"] if per_unit else [])
-    return trials[keep].reset_index(drop=True)
+        trials["stim_stop_ms"] = np.nan
+    trials["extent_lo_ms"], trials["extent_hi_ms"] = _extent(ticks, align, layout)
+    trials["trial"] = trials[keys[0]] if len(keys) == 1 else trials[keys].astype(str).agg("/".join, axis=1)
+    _unique_trials(trials, keys, layout)
+    return trials, {**ticks, "align": align}
 
 
-def _unique_trials(trials: pd.DataFrame, locs: dict[str, Loc]) -> None:
+def _presentation_order(trials: pd.DataFrame, ticks: dict, align: np.ndarray, layout: Layout) -> np.ndarray:
+    rows = np.arange(len(trials))
+    if layout.clock == "session":
+        when = ticks.get("start", align)
+        group = trials["unit"].astype(str).to_numpy() if "unit" in trials else np.zeros(len(trials))
+        return np.lexsort((rows, when, group))
+    if "unit" in trials:
+        return np.lexsort((rows, trials["unit"].astype(str).to_numpy()))
+    return rows
+
+
+def _extent(ticks: dict, align: np.ndarray, layout: Layout) -> tuple[np.ndarray, np.ndarray]:
+    """What was recorded of each trial around its alignment event (ms; -inf/inf when unknown):
+    from start and stop, from a declared extent, or (on a trial clock) from the trial start at 0."""
+    per_ms = layout.ticks_per_ms
+    lo, hi = np.full(align.size, -np.inf), np.full(align.size, np.inf)
+    if "start" in ticks:
+        lo = (ticks["start"] - align) / per_ms
+    elif layout.clock == "trial":
+        lo = -align / per_ms
+    if "stop" in ticks:
+        hi = (ticks["stop"] - align) / per_ms
+    if layout.extent_ms is not None:
+        lo, hi = np.maximum(lo, layout.extent_ms[0]), np.minimum(hi, layout.extent_ms[1])
+    return lo, hi
+
+
+def _unique_trials(trials: pd.DataFrame, keys: list[str], layout: Layout) -> None:
     per_unit = "unit" in trials
-    dup = trials.duplicated(["unit", "trial"] if per_unit else ["trial"])
+    dup = trials.duplicated((["unit"] if per_unit else []) + keys)
     if dup.any():
-        raise DataError(Problem(f"trial ids must be unique{' per unit' if per_unit else ''} in the trial table",
-                                locs["trial"], repr(trials.loc[dup, "trial"].iloc[0])))
+        first = trials.loc[dup].iloc[0]
+        raise DataError(Problem(f"the trial key must be unique{' per unit' if per_unit else ''} in the trial table; "
+                                f"{int(dup.sum())} rows repeat a key (a key of several columns, e.g. level and "
+                                "trial number, tells trials apart when numbers restart)",
+                                layout.locs.get("key0", ()), shown([first[k] for k in keys]) if len(keys) > 1
+                                else shown(first[keys[0]])))
 
 
-def _pairs(trials: pd.DataFrame, units: list[str]) -> tuple[np.ndarray, np.ndarray]:
+def pairs(trials: pd.DataFrame, units: list[str]) -> tuple[np.ndarray, np.ndarray]:
     """(unit index, trial row) of every (unit, trial) pair, ordered by unit, then presentation:
     every unit saw every trial, unless the trial table says which unit each trial belongs to."""
     if "unit" in trials:
         unit_index = {u: i for i, u in enumerate(units)}
-        pair_unit = trials["unit"].map(unit_index).to_numpy(dtype=np.int64)
+        pair_unit = trials["unit"].astype(str).map(unit_index).to_numpy(dtype=np.int64)
         pair_trial = np.arange(len(trials), dtype=np.int64)
         order = np.lexsort((pair_trial, pair_unit))
         return pair_unit[order], pair_trial[order]
@@ -175,21 +222,23 @@ def _pairs(trials: pd.DataFrame, units: list[str]) -> tuple[np.ndarray, np.ndarr
             np.tile(np.arange(len(trials), dtype=np.int64), len(units)))
 
 
-def _pair_of_spikes(spikes: pd.DataFrame, trials: pd.DataFrame, units: list[str], pair_unit: np.ndarray,
-                    pair_trial: np.ndarray, where: str) -> np.ndarray:
-    """For each spike, the index of its (unit, trial) pair; -1 (with a warning) for spikes of
-    trials the trial table does not have."""
-    pairs = pd.DataFrame({"unit": np.asarray(units, dtype=object)[pair_unit].astype(str),
-                          "trial": trials["trial"].to_numpy()[pair_trial], "pair": np.arange(pair_unit.size)})
-    joined = spikes[["unit", "trial"]].merge(pairs, on=["unit", "trial"], how="left", sort=False)
-    lost = joined["pair"].isna()
+def pair_of_spikes(spikes: pd.DataFrame, trials: pd.DataFrame, keys: list[str], units: list[str],
+                   pair_unit: np.ndarray, pair_trial: np.ndarray, layout: Layout) -> np.ndarray:
+    """For each spike, the index of its (unit, trial) pair by the trial key. Spikes whose key
+    the trial table does not have are an error (count and first three keys)."""
+    frame = pd.DataFrame({"unit": np.asarray(units, dtype=object)[pair_unit].astype(str),
+                          **{k: trials[k].to_numpy()[pair_trial] for k in keys}, "pair": np.arange(pair_unit.size)})
+    joined = spikes[["unit", *keys]].merge(frame, on=["unit", *keys], how="left", sort=False)
+    lost = joined["pair"].isna().to_numpy()
     if lost.any():
-        warnings.warn(f"{where}: {int(lost.sum())} spikes belong to {joined.loc[lost, 'trial'].nunique()} "
-                      "trials that are not in the trial table and were left out "
-                      f"(first trial id: {joined.loc[lost, 'trial'].iloc[0]!r})", FigspecWarning, stacklevel=3)
-    return joined["pair"].fillna(-1).to_numpy(dtype=np.int64)
+        missing = spikes.loc[lost, keys].drop_duplicates().head(3)
+        first = ", ".join(shown(list(r)) if len(keys) > 1 else shown(r[0]) for r in missing.itertuples(index=False))
+        raise DataError(Problem(f"{int(lost.sum())} spikes belong to {len(spikes.loc[lost, keys].drop_duplicates())} "
+                                f"trial keys that are not in the trial table of {layout.where}",
+                                layout.locs.get("key0", ()), f"first: {first}"))
+    return joined["pair"].to_numpy(dtype=np.int64)
 
 
-def _natural_key(name: str) -> tuple:
+def natural_key(name: str) -> tuple:
     """Sort 'u2' before 'u10'."""
-    return tuple(int(p) if p.isdigit() else p for p in re.split(r"(\d+)", name))
+    return tuple((0, int(p), "") if p.isdigit() else (1, 0, p) for p in re.split(r"(\d+)", name))

@@ -1,52 +1,84 @@
-"""CSV source: a spike table and an optional trial table, columns named in the spec."""
+"""CSV source: delimited spike and trial tables, columns named in the spec."""
 
 from __future__ import annotations
 
+import csv
 from pathlib import Path
 
 import pandas as pd
 
-from figspec.data.columns import Plan, column_plan
+from figspec.data.columns import Plan, column_plan, missing_columns
 from figspec.errors import DataError, Loc, Problem
 from figspec.spec.sources import CsvSource
 
+DELIMITER_NAMES = {",": "comma", ";": "semicolon", "\t": "tab", "|": "bar", " ": "space"}
 
-def read(src: CsvSource, folder: Path, loc: Loc) -> tuple[pd.DataFrame, pd.DataFrame | None]:
+
+def read(src: CsvSource, folder: Path, loc: Loc, plans: tuple[Plan, Plan | None]) -> tuple[pd.DataFrame, pd.DataFrame | None]:
     """The canonical spike frame and trial frame (None without a trial table) of a CSV source."""
-    spike_plan, trial_plan = column_plan(src, loc)
-    spikes = read_table(folder / src.spikes, spike_plan, loc + ("spikes",))
+    spike_plan, trial_plan = plans
+    spikes = read_table(folder / src.spikes, spike_plan, loc + ("spikes",), src.delimiter, loc)
     trials = None
     if trial_plan is not None and src.trials is not None:
-        trials = read_table(folder / src.trials, trial_plan, loc + ("trials",))
+        trials = read_table(folder / src.trials, trial_plan, loc + ("trials",), src.delimiter, loc)
     return spikes, trials
 
 
-def read_table(path: Path, wanted: Plan, file_loc: Loc) -> pd.DataFrame:
-    """Read the columns of a CSV file, renamed to canonical names.
-
-    Parameters
-    ----------
-    path : the CSV file.
-    wanted : canonical name -> (column name in the file, key path of that mapping in the spec).
-    file_loc : key path of the file name in the spec, for a missing or unreadable file.
-    """
+def check_file(path: Path, file_loc: Loc) -> None:
+    """A missing file, a folder or an unreadable file is a user error at the key that named it."""
+    if path.is_dir():
+        raise DataError(Problem(f"{path} is a folder, not a data file", file_loc))
     if not path.is_file():
         raise DataError(Problem(f"data file not found: {path}", file_loc))
     try:
-        header = list(pd.read_csv(path, nrows=0).columns)
-    except (pd.errors.ParserError, pd.errors.EmptyDataError, UnicodeDecodeError, OSError) as err:
-        raise DataError(Problem(f"cannot read {path} as CSV: {err}", file_loc)) from None
-    problems = []
-    for canonical, (column, loc) in wanted.items():
-        if column not in header:
-            shown = ", ".join(header[:12]) + (" ..." if len(header) > 12 else "")
-            problems.append(Problem(f"column {column!r} not found in {path}", loc, f"columns: {shown}"))
+        with open(path, "rb") as handle:
+            handle.read(1)
+    except OSError as err:
+        raise DataError(Problem(f"cannot read {path}: {err.strerror}", file_loc)) from None
+
+
+def _header(path: Path, delimiter: str, file_loc: Loc) -> list[str]:
+    try:
+        with open(path, encoding="utf-8-sig", newline="") as handle:
+            first = handle.readline()
+    except UnicodeDecodeError:
+        raise DataError(Problem(f"{path} is not UTF-8 text: is it a CSV file (or another format, e.g. "
+                                "Parquet: set format)?", file_loc)) from None
+    if not first.strip():
+        raise DataError(Problem(f"{path} is empty: a CSV file starts with a header row", file_loc))
+    return next(csv.reader([first], delimiter=delimiter))
+
+
+def _delimiter_problem(header: list[str], delimiter: str, path: Path, loc: Loc) -> Problem | None:
+    """Say so when a header read with ``delimiter`` is one column that another delimiter splits."""
+    if len(header) != 1:
+        return None
+    for other, name in DELIMITER_NAMES.items():
+        if other != delimiter and other != " " and other in header[0]:
+            shown = "\\t" if other == "\t" else other
+            return Problem(f"{path} looks {name}-separated, but is read as {DELIMITER_NAMES[delimiter]}-separated: "
+                           f"set delimiter = \"{shown}\"", loc + ("delimiter",), f"header {header[0][:40]!r}")
+    return None
+
+
+def read_table(path: Path, wanted: Plan, file_loc: Loc, delimiter: str = ",", src_loc: Loc = ()) -> pd.DataFrame:
+    """Read the planned columns of a delimited file, renamed to canonical names (key and unit
+    columns as text, so the assembly decides their type)."""
+    check_file(path, file_loc)
+    header = _header(path, delimiter, file_loc)
+    wrong = _delimiter_problem(header, delimiter, path, src_loc)
+    if wrong is not None:
+        raise DataError(wrong)
+    problems = missing_columns(header, wanted, str(path))
     if problems:
         raise DataError(problems)
-    columns = {column: canonical for canonical, (column, _) in wanted.items()}
+    text_columns = {column: str for canonical, (column, _) in wanted.items()
+                    if canonical == "unit" or canonical.startswith("key")}
     try:
-        frame = pd.read_csv(path, usecols=list(columns), dtype={c: str for c, k in columns.items()
-                                                                  if k in ("unit", "trial")})
+        frame = pd.read_csv(path, sep=delimiter, usecols=sorted({c for c, _ in wanted.values()}),
+                            dtype=text_columns, encoding="utf-8-sig", on_bad_lines="error")
     except (pd.errors.ParserError, ValueError, OSError) as err:
-        raise DataError(Problem(f"cannot read {path} as CSV: {err}", file_loc)) from None
-    return frame.rename(columns=columns)
+        raise DataError(Problem(f"cannot read {path} as CSV: {str(err).strip().splitlines()[-1]}", file_loc)) from None
+    if frame.empty:
+        raise DataError(Problem(f"{path} has a header but no rows", file_loc))
+    return pd.DataFrame({canonical: frame[column].to_numpy() for canonical, (column, _) in wanted.items()})

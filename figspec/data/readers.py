@@ -2,7 +2,7 @@
 
 The format-specific part is one reader module per format, registered in :data:`READERS`; a
 reader returns the canonical spike and trial frames described in :mod:`figspec.data.assemble`,
-and everything after that (trials, units, alignment) is shared.
+and everything after that (trials, clocks, alignment, units, selection) is shared.
 """
 
 from __future__ import annotations
@@ -12,32 +12,62 @@ from typing import Callable
 
 import pandas as pd
 
-from figspec.data import csv_source
-from figspec.data.assemble import TrialCounts, assemble
-from figspec.data.columns import key_paths
+from figspec.data import csv_source, nwb_source, parquet_source
+from figspec.data.assemble import Layout, TrialCounts, assemble
+from figspec.data.columns import Plan, column_plan, key_paths, rename
 from figspec.data.recording import Recording
 from figspec.errors import Loc
-from figspec.spec.sources import TableSource
+from figspec.spec.selection import TrialSelection
+from figspec.spec.sources import SourceBase, TableSource
 
 Frames = tuple[pd.DataFrame, "pd.DataFrame | None"]
 
-READERS: dict[str, Callable[[TableSource, Path, Loc], Frames]] = {
-    "csv": csv_source.read,
+READERS: dict[str, Callable[..., Frames]] = {
+    "csv": lambda src, folder, loc, plans, units: csv_source.read(src, folder, loc, plans),
+    "parquet": parquet_source.read,
+    "nwb": nwb_source.read,
 }
 
 
-def load_source(src: TableSource, folder: Path, loc: Loc) -> Recording:
-    """Read one source and assemble its :class:`Recording`.
+def plans(src: SourceBase, loc: Loc, where_columns: set[str] = frozenset()) -> tuple[Plan, Plan | None]:
+    """The columns a table source reads (NWB plans its own)."""
+    if not isinstance(src, TableSource):
+        return {}, None
+    extra = {c: None for c in where_columns}
+    widened = src.model_copy(update={"keep": TrialSelection(exclude=src.keep.exclude,
+                                                            where={**extra, **src.keep.where})})
+    return column_plan(widened, loc)
+
+
+def layout(src: SourceBase, where: str, locs: dict, loc: Loc) -> Layout:
+    return Layout(where=where, locs=locs, time_unit=src.time_unit, clock=src.time_clock, align=src.align,
+                  assign=getattr(src, "assign_spikes", "by_key"), ticks_per_second=src.ticks_per_second,
+                  extent_ms=src.extent_ms, keep=src.keep, keep_loc=loc + ("keep",),
+                  counts=TrialCounts(getattr(src, "trials_per_level", None), loc + ("trials_per_level",)))
+
+
+def load_source(src: SourceBase, folder: Path, loc: Loc, units: set[str] | None = None,
+                where_columns: set[str] = frozenset(), frames: Frames | None = None) -> Recording:
+    """Read one source (or take its frames, as a notebook passes them) and assemble its
+    :class:`Recording`.
 
     Parameters
     ----------
     src : the source spec.
     folder : the folder relative file names are resolved against (the spec's folder).
     loc : key path of the source in the spec, e.g. ``("sources", "midbrain")``.
+    units : the units the spec uses (a reader may read only those).
+    where_columns : trial-table columns that panels' selection conditions test.
+    frames : (spike table, trial table) as DataFrames with the file's own column names, instead
+        of reading files.
     """
-    spikes, trials = READERS[src.format](src, folder, loc)
-    if src.unit_name is not None:
+    planned = plans(src, loc, where_columns)
+    if frames is not None:
+        spikes = rename(frames[0], planned[0], "the spike table")
+        trials = None if frames[1] is None or planned[1] is None else rename(frames[1], planned[1], "the trial table")
+    else:
+        spikes, trials = READERS[src.format](src, folder, loc, planned, units)
+    if getattr(src, "unit_name", None) is not None:
         spikes["unit"] = src.unit_name
-    where = " and ".join(str(folder / path) for path in src.files().values())
-    return assemble(spikes, trials, time_unit=src.time_unit, where=where, locs=key_paths(src, loc),
-                    counts=TrialCounts(src.trials_per_level, loc + ("trials_per_level",)))
+    where = " and ".join(str(folder / path) for path in src.files().values()) if frames is None else "the data frames"
+    return assemble(spikes, trials, layout(src, where, key_paths(src, loc, planned), loc))

@@ -1,12 +1,14 @@
-"""The canonical in-memory recording: flat spike arrays with offsets per (unit, trial).
+"""The canonical in-memory recording: flat integer spike times with offsets per (unit, trial).
 
-Every trial that was presented has a (unit, trial) *pair*, whether or not it holds a spike,
-so rates can divide by the trials presented and rasters can show empty rows.
+Every trial that was presented (and kept) has a (unit, trial) *pair*, whether or not it holds a
+spike, so rates can divide by the trials presented and rasters can show empty rows. Times are
+integer counts of a fixed tick from the moment they are read, so alignment subtracts integers
+and a spike on a bin edge falls where exact decimal arithmetic says.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 import pandas as pd
@@ -14,21 +16,27 @@ import pandas as pd
 
 @dataclass(frozen=True, eq=False)
 class Recording:
-    """Spikes of one or more units, aligned to stimulus onset, with every trial presented.
+    """Spikes of one or more units, aligned to an event of each trial, with every trial presented.
 
     Attributes
     ----------
     units : unit names, sorted.
     trials : one row per presented trial, in presentation order, with columns ``trial`` (the
-        id from the data), ``level`` (float), ``onset_s`` (stimulus onset on the data's clock, s;
-        0 when the data gives none), ``stim_stop_s`` (stimulus offset relative to onset, s; NaN
-        when unknown) and ``unit`` (only when trials belong to one unit each).
+        trial key as the data gives it; several key columns are joined by "/"), ``level``
+        (float), ``stim_start_ms`` and ``stim_stop_ms`` (stimulus onset and offset relative to
+        the alignment event, ms; the offset NaN when unknown), ``extent_lo_ms`` and
+        ``extent_hi_ms`` (what was recorded of the trial around the alignment event, ms; -inf
+        and inf when unknown), ``unit`` (only when trials belong to one unit each) and
+        ``where:COLUMN`` (trial-table columns used by selection conditions).
     pair_unit, pair_trial : for each (unit, trial) pair, the index into ``units`` and into the
         rows of ``trials``. Pairs are ordered by unit, then presentation.
     offsets : int64 array of length ``n_pairs + 1``; the spikes of pair ``p`` are
-        ``times_s[offsets[p]:offsets[p + 1]]``.
-    times_s : float64 spike times relative to their trial's stimulus onset (s), sorted
+        ``ticks[offsets[p]:offsets[p + 1]]``.
+    ticks : int64 spike times relative to their trial's alignment event, in ticks, sorted
         within each pair.
+    ticks_per_ms : the tick (1 µs unless the source declares another).
+    removed : (what, how many) of everything left out on the way: trials removed by each
+        selection rule, spikes outside every trial.
     """
 
     units: tuple[str, ...]
@@ -36,7 +44,9 @@ class Recording:
     pair_unit: np.ndarray
     pair_trial: np.ndarray
     offsets: np.ndarray
-    times_s: np.ndarray
+    ticks: np.ndarray
+    ticks_per_ms: int = 1000
+    removed: tuple[tuple[str, int], ...] = ()
 
     @property
     def n_pairs(self) -> int:
@@ -44,7 +54,12 @@ class Recording:
 
     @property
     def n_spikes(self) -> int:
-        return int(self.times_s.size)
+        return int(self.ticks.size)
+
+    @property
+    def times_s(self) -> np.ndarray:
+        """Spike times relative to the alignment event, s (float; for display and tests)."""
+        return self.ticks / (self.ticks_per_ms * 1000.0)
 
     @property
     def levels(self) -> np.ndarray:
@@ -58,3 +73,22 @@ class Recording:
     def pair_level(self) -> np.ndarray:
         """For every pair, its trial's level."""
         return self.trials["level"].to_numpy(dtype=float)[self.pair_trial]
+
+    def to_ticks(self, ms: float | np.ndarray) -> np.ndarray:
+        """Times in ms as whole ticks (windows and bin edges are whole ticks by construction)."""
+        return np.rint(np.asarray(ms, dtype=float) * self.ticks_per_ms).astype(np.int64)
+
+    def keep_trials(self, keep: np.ndarray, removed: tuple[tuple[str, int], ...] = ()) -> "Recording":
+        """The recording with only the trials where ``keep`` (one bool per row of ``trials``)."""
+        if keep.all():
+            return replace(self, removed=self.removed + removed) if removed else self
+        new_index = np.cumsum(keep) - 1
+        pair_keep = keep[self.pair_trial]
+        counts = np.diff(self.offsets)[pair_keep]
+        spike_keep = np.repeat(pair_keep, np.diff(self.offsets))
+        offsets = np.zeros(counts.size + 1, dtype=np.int64)
+        np.cumsum(counts, out=offsets[1:])
+        return Recording(units=self.units, trials=self.trials[keep].reset_index(drop=True),
+                         pair_unit=self.pair_unit[pair_keep], pair_trial=new_index[self.pair_trial[pair_keep]],
+                         offsets=offsets, ticks=self.ticks[spike_keep], ticks_per_ms=self.ticks_per_ms,
+                         removed=self.removed + removed)

@@ -75,7 +75,8 @@ def compose(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> "Figu
     if spec.figure.title:
         fig.suptitle(spec.figure.title)
     if appearance and spec.stimulus.key:
-        ranges = any(p.stimulus is not None and (p.stimulus["stop_max_ms"] > p.stimulus["stop_min_ms"]).any()
+        ranges = any(p.stimulus is not None and ((p.stimulus["stop_max_ms"] > p.stimulus["stop_min_ms"]).any()
+                                                 or (p.stimulus["start_max_ms"] > p.stimulus["start_ms"]).any())
                      for p in plans)
         stimulus_key(fig, appearance, spec.stimulus.label, spec.levels.label, ranges)
     return fig
@@ -149,8 +150,8 @@ def _mark(plan: PanelPlan, target, spec: FigureFile, ctx: DrawContext, appearanc
                 mark_stimulus(target[key], window, colour, alpha, ctx.style, mark)
         return
     top = stim.loc[stim["level"].idxmax()]
-    window = pd.Series({"start_ms": stim["start_ms"].min(), "stop_min_ms": stim["stop_min_ms"].min(),
-                        "stop_max_ms": stim["stop_max_ms"].max()})
+    window = pd.Series({"start_ms": stim["start_ms"].min(), "start_max_ms": stim["start_max_ms"].max(),
+                        "stop_min_ms": stim["stop_min_ms"].min(), "stop_max_ms": stim["stop_max_ms"].max()})
     colour, alpha = appearance[float(top["level"])]
     mark_stimulus(target, window, colour, alpha, ctx.style, mark)
 

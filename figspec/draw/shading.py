@@ -84,8 +84,12 @@ def level_appearance(all_levels: np.ndarray, stimulus: StimulusSpec, style: Styl
 def mark_stimulus(ax: "Axes", window: pd.Series, colour: str, alpha: float, style: Style, mark: str) -> list:
     """Draw one stimulus window (a row of the stimulus table): shading behind the data, or a
     bar above the axes. Where per-trial stops differ, the span from the earliest to the latest
-    stop is drawn fainter, so the figure shows the range rather than pretending to one window."""
-    parts = [(window["start_ms"], window["stop_min_ms"], alpha)]
+    stop (and from the earliest to the latest start) is drawn fainter, so the figure shows the
+    range rather than pretending to one window."""
+    start = window.get("start_max_ms", window["start_ms"])
+    parts = [(start, window["stop_min_ms"], alpha)]
+    if start > window["start_ms"]:
+        parts.append((window["start_ms"], start, alpha * style.stimulus.range_hatch_opacity))
     if window["stop_max_ms"] > window["stop_min_ms"]:
         parts.append((window["stop_min_ms"], window["stop_max_ms"], alpha * style.stimulus.range_hatch_opacity))
     artists = []
@@ -113,6 +117,6 @@ def stimulus_key(fig, appearance: dict[float, tuple], label: str, level_text, ra
     shown = list(dict.fromkeys(shown))
     handles = [Patch(facecolor=appearance[lv][0], alpha=appearance[lv][1], linewidth=0) for lv in shown]
     labels = [level_text(lv) for lv in shown]
-    title = label + (" (fainter: range of offsets across trials)" if ranges else "")
+    title = label + (" (fainter: range of onsets or offsets across trials)" if ranges else "")
     fig.legend(handles, labels, loc="outside lower center", ncols=len(shown), title=title,
                title_fontsize=None, handlelength=1.5, columnspacing=1.2, alignment="center")

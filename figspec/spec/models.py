@@ -110,8 +110,9 @@ class FigureFile(Frozen):
     style: dict[str, Any] | None = None
 
 
-def source_name(spec: FigureFile, panel: PanelBase) -> str | None:
-    """The source a panel draws from (the only source when it names none)."""
+def source_name(spec: FigureFile, panel: PanelBase) -> str | list[str] | None:
+    """The source a panel draws from (the only source when it names none), or the list of
+    sources it pools."""
     if panel.source is not None:
         return panel.source
     return next(iter(spec.sources)) if len(spec.sources) == 1 else None
@@ -126,9 +127,10 @@ def cross_check(spec: FigureFile) -> list[Problem]:
             problems.append(Problem(f"panel names must be unique; panels[{seen[panel.name]}] has it too",
                                     ("panels", i, "name"), repr(panel.name)))
         seen.setdefault(panel.name, i)
-        if panel.source is not None and panel.source not in spec.sources:
+        unknown = [name for name in panel.source_names() if name not in spec.sources]
+        if unknown:
             problems.append(Problem(f"no such source; sources are {sorted(spec.sources)}",
-                                    ("panels", i, "source"), repr(panel.source)))
+                                    ("panels", i, "source"), repr(unknown[0])))
         elif source_name(spec, panel) is None:
             problems.append(Problem(f"several sources exist, so the panel must name one of {sorted(spec.sources)}",
                                     ("panels", i)))
@@ -137,10 +139,12 @@ def cross_check(spec: FigureFile) -> list[Problem]:
         if panel.fitted_model() is not None and spec.levels.scale is None:
             problems.append(Problem(f"a {panel.fitted_model()} fit needs the level's scale: set levels.scale to "
                                     "'pressure_db', 'power_db' or 'linear'", ("panels", i, "fit")))
-        src = spec.sources.get(source_name(spec, panel) or "")
-        if spec.stimulus.per_trial and src is not None and not src.has_stimulus_window:
-            problems.append(Problem("stimulus.per_trial needs a trial table with onset and offset columns "
-                                    f"in source {source_name(spec, panel)!r}", ("stimulus", "per_trial")))
+        named = source_name(spec, panel)
+        for src_name in [named] if isinstance(named, str) else (named or []):
+            src = spec.sources.get(src_name)
+            if spec.stimulus.per_trial and src is not None and not src.has_stimulus_window:
+                problems.append(Problem("stimulus.per_trial needs a trial table with onset and offset columns "
+                                        f"in source {src_name!r}", ("stimulus", "per_trial")))
     problems += grid_problems(spec.layout, spec.panels, spec.shared)
     if spec.stimulus.opacity_scale == "log" and spec.levels.unit.lower().startswith("db"):
         problems.append(Problem("levels in dB are already logarithmic: use opacity_scale = 'linear'",

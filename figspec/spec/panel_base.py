@@ -8,6 +8,7 @@ from typing import Annotated, Literal
 from pydantic import Field, model_validator
 
 from figspec.spec.fields import Frozen, Name, WindowMs
+from figspec.spec.selection import TrialSelection
 
 Probability = Annotated[float, Field(gt=0, lt=1)]
 GridCell = tuple[Annotated[int, Field(ge=1)], Annotated[int, Field(ge=1)]]
@@ -18,7 +19,7 @@ class PanelBase(Frozen):
     """Keys every panel kind has: what to draw from, where in the grid, labels and ticks."""
 
     name: Name
-    source: str | None = None
+    source: str | Annotated[list[str], Field(min_length=2)] | None = None
     unit: str | None = None
     units: list[str] | None = Field(default=None, min_length=1)
     levels: list[float] | None = None
@@ -30,6 +31,7 @@ class PanelBase(Frozen):
     x_step: Step | None = None
     y_ticks: list[float] | None = None
     y_step: Step | None = None
+    keep: TrialSelection = TrialSelection()
 
     @model_validator(mode="after")
     def _ticks(self) -> "PanelBase":
@@ -37,6 +39,10 @@ class PanelBase(Frozen):
             if getattr(self, f"{axis}_ticks") is not None and getattr(self, f"{axis}_step") is not None:
                 raise ValueError(f"give {axis}_ticks or {axis}_step, not both")
         return self
+
+    def source_names(self) -> list[str]:
+        """The sources the panel draws from (several: their units pooled)."""
+        return [self.source] if isinstance(self.source, str) else list(self.source or [])
 
     def fitted_model(self) -> str | None:
         """The model fitted to the panel's points (it needs ``levels.scale``), if any."""

@@ -9,6 +9,8 @@ from pathlib import Path
 
 import numpy as np
 
+from figspec.data.keep import select_trials
+from figspec.data.pooling import pool, pooled_name
 from figspec.data.readers import load_source
 from figspec.data.recording import Recording
 from figspec.errors import DataError, Problem, UserError
@@ -23,15 +25,20 @@ from figspec.spec.style_files import ResolvedStyle, resolve_style
 @dataclass(frozen=True)
 class Resolved:
     """A spec whose data is loaded and whose panels are complete: each names its source and
-    unit, and every automatic choice is replaced by the value chosen."""
+    unit, and every automatic choice is replaced by the value chosen. ``panel_recordings``
+    holds each panel's data: its source's (or its pooled sources'), less the trials its own
+    selection leaves out."""
 
     spec: LoadedSpec
     recordings: dict[str, Recording]
     panels: tuple[PanelBase, ...]
     style: Style
     style_sources: tuple = ()
+    panel_recordings: dict[str, Recording] | None = None
 
     def recording(self, panel: PanelBase) -> Recording:
+        if self.panel_recordings is not None and panel.name in self.panel_recordings:
+            return self.panel_recordings[panel.name]
         return self.recordings[panel.source]
 
 
@@ -39,19 +46,21 @@ def _located(spec: LoadedSpec, err: UserError) -> UserError:
     return type(err)([spec.locate(p) for p in err.problems])
 
 
-def resolve(spec: LoadedSpec, style: str | None = None) -> Resolved:
-    """The resolved spec (``style`` overrides the spec's own style)."""
+def resolve(spec: LoadedSpec, style: str | None = None, frames: dict | None = None) -> Resolved:
+    """The resolved spec (``style`` overrides the spec's own style; ``frames`` gives sources'
+    tables as DataFrames instead of files: source name -> (spikes, trials))."""
     resolved_style = load_style(spec, style)
     if spec.model.figure.width_mm is None:     # the style's default width
         figure = spec.model.figure.model_copy(update={"width_mm": resolved_style.style.figure.width_mm})
         spec = replace(spec, model=spec.model.model_copy(update={"figure": figure}))
-    recordings = load_recordings(spec)
-    panels = [complete_panel(spec, recordings, i) for i in range(len(spec.model.panels))]
-    problems = [p for _, found in panels for p in found]
+    recordings = load_recordings(spec, frames or {})
+    done = [complete_panel(spec, recordings, i) for i in range(len(spec.model.panels))]
+    problems = [p for _, _, found in done for p in found]
     if problems:
         raise spec.error(problems, DataError)
-    return Resolved(spec=spec, recordings=recordings, panels=tuple(p for p, _ in panels),
-                    style=resolved_style.style, style_sources=resolved_style.sources)
+    return Resolved(spec=spec, recordings=recordings, panels=tuple(p for p, _, _ in done),
+                    style=resolved_style.style, style_sources=resolved_style.sources,
+                    panel_recordings={p.name: rec for p, rec, _ in done})
 
 
 def load_style(spec: LoadedSpec, style: str | None) -> ResolvedStyle:
@@ -62,24 +71,38 @@ def load_style(spec: LoadedSpec, style: str | None) -> ResolvedStyle:
         raise _located(spec, err) from None
 
 
-def load_recordings(spec: LoadedSpec) -> dict[str, Recording]:
+def load_recordings(spec: LoadedSpec, frames: dict) -> dict[str, Recording]:
+    """Every source's recording, reading only the units and selection columns the panels use."""
+    model = spec.model
     recordings = {}
-    for name, src in spec.model.sources.items():
+    for name, src in model.sources.items():
+        users = [p for p in model.panels if name in _sources_of(model, p)]
+        units = None if any(p.unit is None and p.units is None for p in users) else \
+            {u.split("/", 1)[-1] for p in users for u in p.unit_names()}
+        where = {c for p in users for c in p.keep.where}
         try:
-            recordings[name] = load_source(src, spec.folder, ("sources", name))
+            recordings[name] = load_source(src, spec.folder, ("sources", name), units, where, frames.get(name))
         except UserError as err:
             raise _located(spec, err) from None
     return recordings
 
 
-def complete_panel(spec: LoadedSpec, recordings: dict[str, Recording], i: int) -> tuple[PanelBase, list[Problem]]:
-    """(the panel with its source, unit and automatic choices filled in; its data problems)."""
+def _sources_of(model, panel) -> list[str]:
+    named = source_name(model, panel)
+    return [named] if isinstance(named, str) else list(named or [])
+
+
+def complete_panel(spec: LoadedSpec, recordings: dict[str, Recording], i: int):
+    """(the panel with its source, unit and automatic choices filled in; its recording; its
+    data problems, with key paths from the spec's root)."""
     panel = spec.model.panels[i]
     src = source_name(spec.model, panel)
-    rec = recordings[src]
-    unit, problems = _unit(panel, rec, src)
-    panel = panel.model_copy(update={"source": src, "unit": unit})
-    problems += _level_problems(panel, rec, src) + _window_problems(panel, rec)
+    rec, problems = _panel_recording(panel, recordings, src)
+    unit, units, found = _units(panel, rec, recordings, src)
+    problems += found
+    panel = panel.model_copy(update={"source": src, "unit": unit, "units": units})
+    if not problems:
+        problems += _level_problems(panel, rec, src) + extent_problems(panel, rec)
     kind = kind_of(panel)
     if not problems:
         problems += kind.check(rec, panel, spec.model.levels)
@@ -88,29 +111,56 @@ def complete_panel(spec: LoadedSpec, recordings: dict[str, Recording], i: int) -
             panel = kind.resolve(rec, panel, spec.model.levels)
         except UserError as err:
             problems += err.problems
-    return panel, [replace(p, loc=("panels", i) + p.loc) for p in problems]
+    return panel, rec, [replace(p, loc=("panels", i) + p.loc) for p in problems]
 
 
-def _unit(panel: PanelBase, rec: Recording, src: str) -> tuple[str | None, list[Problem]]:
+def _panel_recording(panel: PanelBase, recordings: dict[str, Recording], src) -> tuple[Recording, list[Problem]]:
+    rec = pool({s: recordings[s] for s in src}, ("source",)) if isinstance(src, list) else recordings[src]
+    if panel.keep.empty:
+        return rec, []
+    keys = ["trial"]
+    try:
+        keep, removed = select_trials(rec.trials, keys, panel.keep, ("keep",))
+    except UserError as err:
+        return rec, err.problems
+    return rec.keep_trials(keep, tuple((f"panel {panel.name}: {what}", n) for what, n in removed)), []
+
+
+def _units(panel: PanelBase, rec: Recording, recordings: dict, src) -> tuple:
+    """(unit, units, problems) with names as the panel's recording knows them."""
+    pooled = isinstance(src, list)
     if panel.units is not None:
-        return None, [p for j, name in enumerate(panel.units) for p in _unit_problems(name, rec, src, ("units", j))]
+        names, problems = [], []
+        for j, name in enumerate(panel.units):
+            full, found = _unit_name(name, rec, recordings, src, pooled, ("units", j))
+            names.append(full or name)
+            problems += found
+        return None, names, problems
     if panel.unit is None and len(rec.units) == 1:
-        return rec.units[0], []
+        return rec.units[0], None, []
     if panel.unit is None:
-        return None, [Problem(f"source {src!r} holds several units: name one with 'unit' "
-                              f"(units: {', '.join(rec.units)})")]
-    return panel.unit, _unit_problems(panel.unit, rec, src, ("unit",))
+        return None, None, [Problem(f"source {src!r} holds several units: name one with 'unit' "
+                                    f"(units: {', '.join(rec.units)})")]
+    full, problems = _unit_name(panel.unit, rec, recordings, src, pooled, ("unit",))
+    return full or panel.unit, None, problems
 
 
-def _unit_problems(unit: str, rec: Recording, src: str, loc: tuple) -> list[Problem]:
-    if unit in rec.units:
-        return []
-    close = difflib.get_close_matches(unit, rec.units, n=1)
+def _unit_name(name: str, rec: Recording, recordings: dict, src, pooled: bool, loc: tuple):
+    if pooled:
+        full, holders = pooled_name(name, {s: recordings[s] for s in src})
+        if full is not None:
+            return full, []
+        if len(holders) > 1:
+            return None, [Problem(f"several pooled sources have this unit: name one of {', '.join(holders)}",
+                                  loc, repr(name))]
+    elif name in rec.units:
+        return name, []
+    close = difflib.get_close_matches(name, rec.units, n=1)
     hint = f"; did you mean {close[0]!r}?" if close else f"; units: {', '.join(rec.units)}"
-    return [Problem(f"no such unit in source {src!r}{hint}", loc, repr(unit))]
+    return None, [Problem(f"no such unit in source {src!r}{hint}", loc, repr(name))]
 
 
-def _level_problems(panel: PanelBase, rec: Recording, src: str) -> list[Problem]:
+def _level_problems(panel: PanelBase, rec: Recording, src) -> list[Problem]:
     missing = sorted(set(panel.levels or ()) - set(rec.levels.tolist()))
     if not missing:
         return []
@@ -118,13 +168,20 @@ def _level_problems(panel: PanelBase, rec: Recording, src: str) -> list[Problem]
                     ("levels",), ", ".join(f"{v:g}" for v in missing))]
 
 
-def _window_problems(panel: PanelBase, rec: Recording) -> list[Problem]:
-    """Windows must lie within one trial: inside the shortest gap between stimulus onsets."""
-    onsets = np.sort(rec.trials["onset_s"].to_numpy(dtype=float))
-    gaps = np.diff(onsets)
-    if onsets.size < 2 or not np.any(gaps > 0):
-        return []
-    gap_ms = float(np.min(gaps[gaps > 0]) * 1e3)
-    return [Problem(f"reaches outside the trial: stimulus onsets are only {gap_ms:.0f} ms apart, so spikes "
-                    "there belong to the next or previous trial", (key,), f"[{window[0]:g}, {window[1]:g}]")
-            for key, window in panel.windows().items() if window[1] > gap_ms or window[0] < -gap_ms]
+def extent_problems(panel: PanelBase, rec: Recording) -> list[Problem]:
+    """A window must lie within what was recorded of every trial the panel shows."""
+    unit_index = [rec.units.index(u) for u in panel.unit_names() if u in rec.units]
+    shown = np.unique(rec.pair_trial[np.isin(rec.pair_unit, unit_index)])
+    if panel.levels is not None:
+        shown = shown[np.isin(rec.trials["level"].to_numpy(dtype=float)[shown], panel.levels)]
+    lo = rec.trials["extent_lo_ms"].to_numpy(dtype=float)[shown]
+    hi = rec.trials["extent_hi_ms"].to_numpy(dtype=float)[shown]
+    problems = []
+    for key, (start, stop) in panel.windows().items():
+        short = (lo > start) | (hi < stop)
+        if short.any():
+            problems.append(Problem(
+                f"reaches past what was recorded of {int(short.sum())} of {shown.size} trials shown (recorded "
+                f"from {np.max(lo):g} to {np.min(hi):g} ms around the alignment event in every trial)",
+                (key,), f"[{start:g}, {stop:g}]"))
+    return problems

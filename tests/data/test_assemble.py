@@ -2,7 +2,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from figspec.data.assemble import TrialCounts, assemble
+from figspec.data.assemble import Layout, TrialCounts, assemble
 from figspec.errors import DataError, FigspecWarning
 
 from helpers import build_recording
@@ -28,7 +28,7 @@ def test_times_are_aligned_to_onset_and_ms_converted_to_s():
     rec_ms = build_recording([("u1", 1, 1012.0)], ms_trials, time_unit="ms")
     assert rec_s.times_s == pytest.approx([0.012])
     assert rec_ms.times_s == pytest.approx([0.012])
-    assert rec_ms.trials["stim_stop_s"].to_numpy() == pytest.approx(0.05)
+    assert rec_ms.trials["stim_stop_ms"].tolist() == [50.0] * 4            # exact: integer ticks
 
 
 def test_units_are_kept_apart():
@@ -44,14 +44,16 @@ def test_spikes_are_sorted_within_each_trial():
     assert rec.times_s == pytest.approx([0.01, 0.02, 0.03])
 
 
-def test_spikes_of_unknown_trials_warn_and_are_left_out():
-    with pytest.warns(FigspecWarning, match="1 spikes belong to 1 trials"):
-        rec = build_recording([("u1", 1, 1.01), ("u1", 99, 9.0)], TRIALS)
-    assert rec.n_spikes == 1
+def test_spikes_of_unknown_trials_are_an_error_in_the_users_values():
+    with pytest.raises(DataError) as info:
+        build_recording([("u1", 1, 1.01), ("u1", 99, 9.0), ("u1", 98, 9.5), ("u1", 97, 9.6), ("u1", 96, 9.7)], TRIALS)
+    [problem] = info.value.problems
+    assert "4 spikes belong to 4 trial keys that are not in the trial table" in problem.message
+    assert problem.got == "first: 99, 98, 97"
 
 
 def test_non_numeric_level_is_a_data_error():
-    with pytest.raises(DataError, match="levels must be numbers"):
+    with pytest.raises(DataError, match="levels must be finite numbers"):
         build_recording([("u1", 1, 0.1)], [(1, "loud", 0, 1)])
 
 
@@ -61,11 +63,11 @@ def test_duplicate_trial_ids_are_a_data_error():
 
 
 def _no_trial_table(per_level):
-    spikes = pd.DataFrame({"unit": "u1", "trial": [1, 2, 3], "time": [0.01, 0.02, 0.03],
+    spikes = pd.DataFrame({"unit": "u1", "key0": [1, 2, 3], "time": [0.01, 0.02, 0.03],
                            "level": [0, 0, 20]})
-    locs = {k: ("sources", "t", k) for k in ("unit", "trial", "time", "level", "onset", "offset")}
-    return assemble(spikes, None, time_unit="s", where="test", locs=locs,
-                    counts=TrialCounts(per_level, ("sources", "t", "trials_per_level")))
+    locs = {k: ("sources", "t", k) for k in ("unit", "key0", "time", "level", "onset", "offset")}
+    return assemble(spikes, None, Layout(where="test", locs=locs,
+                                         counts=TrialCounts(per_level, ("sources", "t", "trials_per_level"))))
 
 
 def test_declared_trials_per_level_add_the_empty_trials():

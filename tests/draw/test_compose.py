@@ -143,7 +143,7 @@ def test_differing_offsets_are_drawn_as_a_range(tmp_path):
     spans = [p for p in ax.patches if p.get_gid() == "stimulus"]
     assert len(spans) == 2 and spans[1].get_alpha() < spans[0].get_alpha()
     assert (spans[1].get_x(), spans[1].get_x() + spans[1].get_width()) == pytest.approx((50, 70))
-    assert "range of offsets" in fig.legends[0].get_title().get_text()
+    assert "range of onsets or offsets" in fig.legends[0].get_title().get_text()
 
 
 def test_columns_and_units(tmp_path):
