@@ -6,6 +6,13 @@ Regenerate the bundled files with::
 
     python -m figspec.demo specs/data
 
+Besides ``spikes.csv`` and ``trials.csv`` (session clock, one trial number per trial), the same
+recording is written as a lab's other layouts and formats would hold it: ``sorted_spikes.csv``
+(a spike sorter's output: unit and session time, no trial column), ``level_spikes.csv`` and
+``level_trials.csv`` (trial numbers restarting within each level, times in ms from each trial's
+start), ``spikes.parquet``/``trials.parquet`` and ``session.nwb``; ``day2_*.csv`` is a second
+session of the same model from the next seed (for pooling sessions).
+
 Model: 270 trials (9 levels from 0 to 80 dB SPL, 30 each) in a shuffled order, one every
 600 ms (``start_s`` to ``stop_s``), each with a 50-ms noise burst about 200 ms after the start. Each unit fires as an inhomogeneous Poisson process
 (0.1-ms Bernoulli steps): spontaneous rate everywhere, plus an evoked rate that rises with
@@ -74,16 +81,74 @@ def generate(seed: int = SEED) -> tuple[pd.DataFrame, pd.DataFrame]:
     return spikes.sort_values(["unit", "time_s"], kind="stable").reset_index(drop=True), trials
 
 
+def restarting_trials(spikes: pd.DataFrame, trials: pd.DataFrame) -> tuple[pd.DataFrame, pd.DataFrame]:
+    """The same recording as a lab whose rig numbers trials 1..N within each level writes it:
+    times in ms relative to each trial's start (a per-trial clock), rows in level order."""
+    numbered = trials.assign(trial_in_level=trials.groupby("level_db").cumcount() + 1)
+    onset_ms = ((numbered["onset_s"] - numbered["start_s"]) * 1e3).round(3)
+    table = pd.DataFrame({"level_db": numbered["level_db"], "trial_in_level": numbered["trial_in_level"],
+                          "onset_ms": onset_ms, "offset_ms": (onset_ms + BURST_S * 1e3).round(3),
+                          "stop_ms": (PERIOD_S * 1e3)})
+    joined = spikes.merge(numbered[["trial", "level_db", "trial_in_level", "start_s"]], on="trial")
+    rel = pd.DataFrame({"unit": joined["unit"], "level_db": joined["level_db"],
+                        "trial_in_level": joined["trial_in_level"],
+                        "time_ms": ((joined["time_s"] - joined["start_s"]) * 1e3).round(3)})
+    return (rel.sort_values(["level_db", "trial_in_level", "unit", "time_ms"], kind="stable").reset_index(drop=True),
+            table.sort_values(["level_db", "trial_in_level"], kind="stable").reset_index(drop=True))
+
+
+def write_nwb(path: Path, spikes: pd.DataFrame, trials: pd.DataFrame) -> None:
+    """The recording as an NWB file: the units table's spike times (each unit's own, unsorted
+    as a sorter may leave them) and the trials table with the level and stimulus times."""
+    from datetime import datetime, timezone
+
+    from figspec.optional import require
+
+    pynwb = require("pynwb", "writing the demo NWB file")
+    nwb = pynwb.NWBFile(session_description="invented demo: auditory midbrain units, noise bursts",
+                        identifier="figspec-demo-session", session_start_time=datetime(2026, 1, 5, tzinfo=timezone.utc))
+    for name, description in (("level_db", "noise level (dB SPL)"), ("onset_s", "noise onset (s)"),
+                              ("offset_s", "noise offset (s)")):
+        nwb.add_trial_column(name=name, description=description)
+    for row in trials.itertuples(index=False):
+        nwb.add_trial(start_time=float(row.start_s), stop_time=float(row.stop_s), level_db=float(row.level_db),
+                      onset_s=float(row.onset_s), offset_s=float(row.offset_s))
+    nwb.add_unit_column(name="unit_name", description="unit name in the lab's notes")
+    for unit, rows in spikes.groupby("unit", sort=True):
+        times = rows["time_s"].to_numpy()
+        nwb.add_unit(spike_times=np.r_[times[1::2], times[0::2]], unit_name=unit)   # unsorted on purpose
+    with pynwb.NWBHDF5IO(str(path), "w") as io:
+        io.write(nwb)
+
+
+def write_all(folder: Path, seed: int = SEED) -> dict[str, int]:
+    """Write every demo file into ``folder``: the CSV recording, its Parquet copy, the spike
+    sorter's session-clock table without trial column, the per-level trial numbering and the
+    NWB session file. Returns the rows written per file."""
+    spikes, trials = generate(seed)
+    folder.mkdir(parents=True, exist_ok=True)
+    csv = {"spikes.csv": spikes, "trials.csv": trials, "sorted_spikes.csv": spikes[["unit", "time_s"]]}
+    csv["level_spikes.csv"], csv["level_trials.csv"] = restarting_trials(spikes, trials)
+    for name, frame in csv.items():
+        frame.to_csv(folder / name, index=False, lineterminator="\n")
+    day2_spikes, day2_trials = generate(seed + 1)          # a second invented session, other units' draws
+    csv["day2_spikes.csv"], csv["day2_trials.csv"] = day2_spikes, day2_trials
+    day2_spikes.to_csv(folder / "day2_spikes.csv", index=False, lineterminator="\n")
+    day2_trials.to_csv(folder / "day2_trials.csv", index=False, lineterminator="\n")
+    spikes.to_parquet(folder / "spikes.parquet", index=False, row_group_size=1000)
+    trials.to_parquet(folder / "trials.parquet", index=False)
+    write_nwb(folder / "session.nwb", spikes, trials)
+    return {name: len(frame) for name, frame in csv.items()}
+
+
 def main(argv: list[str] | None = None) -> None:
     parser = argparse.ArgumentParser(prog="python -m figspec.demo", description=__doc__.split("\n")[0])
     parser.add_argument("folder", type=Path, help="where to write spikes.csv and trials.csv")
     parser.add_argument("--seed", type=int, default=SEED)
     args = parser.parse_args(argv)
-    spikes, trials = generate(args.seed)
-    args.folder.mkdir(parents=True, exist_ok=True)
-    spikes.to_csv(args.folder / "spikes.csv", index=False, lineterminator="\n")
-    trials.to_csv(args.folder / "trials.csv", index=False, lineterminator="\n")
-    print(f"wrote {len(spikes)} spikes and {len(trials)} trials to {args.folder}")
+    rows = write_all(args.folder, args.seed)
+    print(f"wrote {rows['spikes.csv']} spikes and {rows['trials.csv']} trials to {args.folder}, as CSV in three "
+          "layouts, Parquet and NWB")
 
 
 if __name__ == "__main__":

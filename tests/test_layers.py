@@ -10,7 +10,7 @@ import figspec
 
 PACKAGE = Path(figspec.__file__).parent
 # every module of the package belongs to one layer: a folder, or a top-level module
-LAYERS = ["base", "spec", "data", "compute", "draw", "output", "registry", "steps", "pipeline", "review",
+LAYERS = ["base", "spec", "data", "compute", "draw", "output", "registry", "steps", "pipeline", "notebook", "review",
           "testing", "demo", "cli"]
 BASE = {"figspec", "figspec.errors", "figspec.optional", "figspec.__init__"}   # importable from every layer
 THIRD_PARTY = {  # what each layer may import besides the standard library and earlier layers
@@ -20,6 +20,7 @@ THIRD_PARTY = {  # what each layer may import besides the standard library and e
     "draw": {"numpy", "pandas", "matplotlib"},
     "output": {"numpy", "pandas", "matplotlib", "PIL"},
     "steps": {"numpy", "pandas", "matplotlib"},
+    "notebook": {"pandas", "matplotlib"},
     "review": {"tomli"},
     "testing": {"pytest"},
     "demo": {"numpy", "pandas"},

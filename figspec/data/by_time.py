@@ -3,11 +3,13 @@
 
 from __future__ import annotations
 
+import warnings
+
 import numpy as np
 import pandas as pd
 
 from figspec.data.keep import shown
-from figspec.errors import DataError, Problem
+from figspec.errors import DataError, FigspecWarning, Problem
 
 
 def assign_by_time(spike_t: np.ndarray, spike_unit: pd.Series, units: list[str], trials: pd.DataFrame,
@@ -42,4 +44,8 @@ def assign_by_time(spike_t: np.ndarray, spike_unit: pd.Series, units: list[str],
     if spike_t.size and outside == spike_t.size:
         raise DataError(Problem("no spike falls inside any trial's start and stop: is time_unit right, and are "
                                 "spikes and trials on the same clock?", layout.locs.get("time", ()), layout.where))
+    if outside > spike_t.size / 2:
+        warnings.warn(f"{layout.where}: {outside} of {spike_t.size} spikes fall inside no trial's start and stop "
+                      "(left out): is time_unit right, and are spikes and trials on the same clock?",
+                      FigspecWarning, stacklevel=4)
     return pair, outside

@@ -80,18 +80,18 @@ def select_trials(trials: pd.DataFrame, keys: list[str], rules: TrialSelection,
         keep &= ~gone
     for column, condition in rules.where.items():
         hit = _matches(trials[f"where:{column}"], condition)
-        removed.append((f"where {column} = {shown(condition) if not isinstance(condition, Range) else _range(condition)}",
-                        int((keep & ~hit).sum())))
+        rule = _range(condition, column) if isinstance(condition, Range) else f"{column} = {shown(condition)}"
+        removed.append((f"where {rule}", int((keep & ~hit).sum())))
         keep &= hit
         if not keep.any():
             raise DataError(Problem("no trial is left after this condition", loc + ("where", column),
-                                    shown(condition) if not isinstance(condition, Range) else _range(condition)))
+                                    _range(condition, column) if isinstance(condition, Range) else shown(condition)))
     if not keep.any():
         raise DataError(Problem("the selection keeps no trial", loc))
     return keep, tuple(removed)
 
 
-def _range(condition: Range) -> str:
+def _range(condition: Range, column: str) -> str:
     low = "" if condition.min is None else f"{condition.min:g} <= "
     high = "" if condition.max is None else f" <= {condition.max:g}"
-    return f"{low}value{high}"
+    return f"{low}{column}{high}"

@@ -29,14 +29,16 @@ READERS: dict[str, Callable[..., Frames]] = {
 }
 
 
-def plans(src: SourceBase, loc: Loc, where_columns: set[str] = frozenset()) -> tuple[Plan, Plan | None]:
+def widened(src: SourceBase, where_columns: set[str]) -> SourceBase:
+    """The source as a reader sees it: its own selection columns and those the panels test
+    (read, not applied: each rule is applied where it was written)."""
+    where = {**{c: None for c in sorted(where_columns)}, **src.keep.where}
+    return src.model_copy(update={"keep": TrialSelection.model_construct(exclude=src.keep.exclude, where=where)})
+
+
+def plans(src: SourceBase, loc: Loc) -> tuple[Plan, Plan | None]:
     """The columns a table source reads (NWB plans its own)."""
-    if not isinstance(src, TableSource):
-        return {}, None
-    extra = {c: None for c in where_columns}
-    widened = src.model_copy(update={"keep": TrialSelection(exclude=src.keep.exclude,
-                                                            where={**extra, **src.keep.where})})
-    return column_plan(widened, loc)
+    return column_plan(src, loc) if isinstance(src, TableSource) else ({}, None)
 
 
 def layout(src: SourceBase, where: str, locs: dict, loc: Loc) -> Layout:
@@ -61,12 +63,13 @@ def load_source(src: SourceBase, folder: Path, loc: Loc, units: set[str] | None 
     frames : (spike table, trial table) as DataFrames with the file's own column names, instead
         of reading files.
     """
-    planned = plans(src, loc, where_columns)
+    reading = widened(src, set(where_columns))
+    planned = plans(reading, loc)
     if frames is not None:
         spikes = rename(frames[0], planned[0], "the spike table")
         trials = None if frames[1] is None or planned[1] is None else rename(frames[1], planned[1], "the trial table")
     else:
-        spikes, trials = READERS[src.format](src, folder, loc, planned, units)
+        spikes, trials = READERS[src.format](reading, folder, loc, planned, units)
     if getattr(src, "unit_name", None) is not None:
         spikes["unit"] = src.unit_name
     where = " and ".join(str(folder / path) for path in src.files().values()) if frames is None else "the data frames"

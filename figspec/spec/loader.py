@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import difflib
 import hashlib
+import json
 import types
 import typing
 from dataclasses import dataclass, field, replace
@@ -61,11 +62,17 @@ def read_toml(path: Path) -> tuple[str, dict[str, Any]]:
         raise SpecError(Problem(f"not valid TOML: {message}", file=str(path), line=line)) from None
 
 
+def strict_validate(model: type[M], data: dict[str, Any]) -> M:
+    """Validate parsed TOML strictly: no string is read as a number or a boolean. It goes
+    through pydantic's JSON mode, where strict validation still takes arrays for tuples."""
+    return model.model_validate_json(json.dumps(data, default=str), strict=True)
+
+
 def validate(model: type[M], data: dict[str, Any], path: Path, text: str) -> M:
     """Validate ``data`` against ``model``; every failure becomes a located :class:`Problem`."""
     lines = index_key_lines(text)
     try:
-        return model.model_validate(data)
+        return strict_validate(model, data)
     except ValidationError as err:
         problems = _merge_union_errors([problem_from_pydantic(model, e) for e in err.errors(include_url=False)])
         raise SpecError([p.located(str(path), line_for(lines, p.loc)) for p in problems]) from None

@@ -94,7 +94,7 @@ def _copy(value: Any) -> Any:
 def resolve_style(name: str, folder: Path | None, inline: dict[str, Any] | None = None,
                   spec_path: Path | None = None, spec_text: str = "") -> ResolvedStyle:
     """The style ``name`` (looked up from ``folder``) with a spec's inline overrides applied."""
-    from figspec.spec.loader import problem_from_pydantic
+    from figspec.spec.loader import problem_from_pydantic, strict_validate
 
     sources = read_chain(name, folder)
     if inline:
@@ -102,7 +102,7 @@ def resolve_style(name: str, folder: Path | None, inline: dict[str, Any] | None 
                                    index_key_lines(spec_text)))
     merged, origin = merge(sources)
     try:
-        style = Style.model_validate(merged)
+        style = strict_validate(Style, merged)
     except ValidationError as err:
         problems = []
         for error in err.errors(include_url=False):

@@ -48,8 +48,17 @@ def legend(resolved: Resolved, tables: Tables) -> str:
     return legend_text(model.figure.title, sentences)
 
 
+def removed(resolved: Resolved) -> dict[str, list]:
+    """Per panel, what was left out on the way to its data: (rule, how many) for every trial
+    selection rule of its source(s) and its own, and spikes outside every trial."""
+    return {p.name: [list(item) for item in resolved.recording(p).removed] for p in resolved.panels}
+
+
 def statistics(resolved: Resolved, tables: Tables):
-    return statistics_table(row for p in resolved.panels for row in kind_of(p).statistics(p, tables.panels[p.name]))
+    rows = [row for p in resolved.panels for row in kind_of(p).statistics(p, tables.panels[p.name])]
+    rows += [["removed", name, None, None, what, n, None, None, "left out before computing"]
+             for name, items in removed(resolved).items() for what, n in items]
+    return statistics_table(rows)
 
 
 def save(resolved: Resolved, tables: Tables, fig: "Figure", outdir: str | Path,
@@ -69,5 +78,6 @@ def save(resolved: Resolved, tables: Tables, fig: "Figure", outdir: str | Path,
     payload[data_dir / "legend.md"] = legend(resolved, tables).encode()
     outputs = {p.relative_to(outdir).as_posix(): data for p, data in payload.items()}
     payload[data_dir / "manifest.json"] = manifest(sources, outputs,
-                                                   parameters(model, resolved.panels, resolved.style))
+                                                   {**parameters(model, resolved.panels, resolved.style),
+                                                    "removed": removed(resolved)})
     return write_all(payload)
