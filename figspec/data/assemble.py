@@ -121,7 +121,8 @@ def assemble(spikes: pd.DataFrame, trials: pd.DataFrame | None, layout: Layout) 
     keep, removed = select_trials(table, keys, layout.keep, layout.keep_loc)
     spikes["unit"] = spikes["unit"].astype(str)
     per_unit = "unit" in table
-    units = sorted(set(spikes["unit"]) | (set(table["unit"]) if per_unit else set()), key=natural_key)
+    names = set(spikes["unit"].unique().tolist()) | (set(table["unit"].unique().tolist()) if per_unit else set())
+    units = sorted(names, key=natural_key)
     pair_unit, pair_trial = pairs(table, units)
     if layout.assign == "by_time":
         pair, outside = assign_by_time(spike_t, spikes["unit"], units, table, times, layout)
@@ -131,7 +132,7 @@ def assemble(spikes: pd.DataFrame, trials: pd.DataFrame | None, layout: Layout) 
         pair = pair_of_spikes(spikes, table, keys, units, pair_unit, pair_trial, layout)
     align = times["align"][pair_trial][pair] if layout.clock != "aligned" else 0
     ticks = spike_t - align
-    order = np.lexsort((ticks, pair))
+    order = sort_order(pair, ticks)
     offsets = np.zeros(pair_unit.size + 1, dtype=np.int64)
     np.cumsum(np.bincount(pair, minlength=pair_unit.size), out=offsets[1:])
     shown_cols = ["trial", "level", "stim_start_ms", "stim_stop_ms", "extent_lo_ms", "extent_hi_ms"]
@@ -139,6 +140,19 @@ def assemble(spikes: pd.DataFrame, trials: pd.DataFrame | None, layout: Layout) 
     rec = Recording(units=tuple(units), trials=table[shown_cols], pair_unit=pair_unit, pair_trial=pair_trial,
                     offsets=offsets, ticks=ticks[order], ticks_per_ms=layout.ticks_per_ms)
     return rec.keep_trials(keep, removed)
+
+
+def sort_order(pair: np.ndarray, ticks: np.ndarray) -> np.ndarray | slice:
+    """The order that sorts spikes by pair, then time: nothing to do when they arrive so (as a
+    sorter's per-unit time-sorted output usually does), else one stable sort by pair of the
+    time-sorted spikes."""
+    if pair.size < 2:
+        return slice(None)
+    same = pair[1:] == pair[:-1]
+    if np.all(pair[1:] >= pair[:-1]) and np.all(ticks[1:][same] >= ticks[:-1][same]):
+        return slice(None)
+    by_time = np.argsort(ticks, kind="stable")
+    return by_time[np.argsort(pair[by_time], kind="stable")]
 
 
 def trial_table(trials: pd.DataFrame, keys: list[str], layout: Layout) -> tuple[pd.DataFrame, dict]:

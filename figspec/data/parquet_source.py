@@ -45,8 +45,7 @@ def read_table(path: Path, wanted: Plan, file_loc: Loc, src_loc: Loc, units: set
     table = pq.read_table(path, columns=columns, filters=filters).to_pandas()
     if table.empty and filters is None:
         raise DataError(Problem(f"{path} has no rows", file_loc))
-    out = pd.DataFrame({canonical: table[column].to_numpy() for canonical, (column, _) in wanted.items()})
-    for canonical in out:
-        if canonical == "unit" or canonical.startswith("key"):
-            out[canonical] = out[canonical].astype(str)
+    out = pd.DataFrame({canonical: table[column] for canonical, (column, _) in wanted.items()})
+    if "unit" in out and not pd.api.types.is_string_dtype(out["unit"]):
+        out["unit"] = out["unit"].astype(str)      # unit names are text; keys keep their type (see assemble)
     return out
