@@ -19,6 +19,7 @@ event) on a session clock, and the trial table's row order otherwise.
 from __future__ import annotations
 
 import re
+import warnings
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -28,7 +29,7 @@ from figspec.data.by_time import assign_by_time
 from figspec.data.keep import select_trials, shown
 from figspec.data.recording import Recording
 from figspec.data.trials_from_spikes import TrialCounts, trials_from_spikes
-from figspec.errors import DataError, Loc, Problem
+from figspec.errors import DataError, FigspecWarning, Loc, Problem
 from figspec.spec.selection import TrialSelection
 
 SECONDS_PER = {"s": 1.0, "ms": 1e-3}
@@ -132,6 +133,7 @@ def assemble(spikes: pd.DataFrame, trials: pd.DataFrame | None, layout: Layout) 
         pair = pair_of_spikes(spikes, table, keys, units, pair_unit, pair_trial, layout)
     align = times["align"][pair_trial][pair] if layout.clock != "aligned" else 0
     ticks = spike_t - align
+    check_inside_extent(ticks, table, pair_trial[pair], layout)
     order = sort_order(pair, ticks)
     offsets = np.zeros(pair_unit.size + 1, dtype=np.int64)
     np.cumsum(np.bincount(pair, minlength=pair_unit.size), out=offsets[1:])
@@ -140,6 +142,26 @@ def assemble(spikes: pd.DataFrame, trials: pd.DataFrame | None, layout: Layout) 
     rec = Recording(units=tuple(units), trials=table[shown_cols], pair_unit=pair_unit, pair_trial=pair_trial,
                     offsets=offsets, ticks=ticks[order], ticks_per_ms=layout.ticks_per_ms)
     return rec.keep_trials(keep, removed)
+
+
+def check_inside_extent(ticks: np.ndarray, table: pd.DataFrame, trial_of_spike: np.ndarray, layout: Layout) -> None:
+    """Spikes far outside their own trial's recorded extent mean the time unit or the clock is
+    wrong: an error when none is inside, a warning when most are not."""
+    lo = table["extent_lo_ms"].to_numpy(dtype=float)[trial_of_spike]
+    hi = table["extent_hi_ms"].to_numpy(dtype=float)[trial_of_spike]
+    known = np.isfinite(lo) | np.isfinite(hi)
+    if not known.any():
+        return
+    rel = ticks[known] / layout.ticks_per_ms
+    outside = int(((rel < lo[known]) | (rel >= hi[known])).sum())
+    hint = (f"is time_unit = {layout.time_unit!r} right, and are spike and trial times on the same clock "
+            f"({layout.clock!r})?")
+    if outside == rel.size:
+        raise DataError(Problem(f"no spike falls inside its trial's recorded extent: {hint}",
+                                layout.locs.get("time", ()), layout.where))
+    if outside > rel.size / 2:
+        warnings.warn(f"{layout.where}: {outside} of {rel.size} spikes fall outside their trial's recorded extent: "
+                      f"{hint}", FigspecWarning, stacklevel=3)
 
 
 def sort_order(pair: np.ndarray, ticks: np.ndarray) -> np.ndarray | slice:

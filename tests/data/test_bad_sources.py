@@ -110,3 +110,14 @@ def test_nwb_files_without_a_units_or_trials_table(tmp_path):
         'trial_columns = { level = "level", onset = "onset", offset = "offset" }\n\n[[panels]]\nname = "r"\nkind = "raster"\n')
     [line] = problems(tmp_path, text)
     assert "has no units table" in line
+
+
+def test_onsets_on_another_clock_than_the_spikes_are_an_error(tmp_path):
+    import pandas as pd
+
+    trials = pd.read_csv(SPECS / "data" / "trials.csv")
+    shifted = trials.assign(onset_s=trials["onset_s"] + 3600, offset_s=trials["offset_s"] + 3600,
+                            start_s=trials["start_s"] + 3600, stop_s=trials["stop_s"] + 3600)
+    shifted.to_csv(tmp_path / "t.csv", index=False)
+    [line] = problems(tmp_path, MINIMAL_SPEC.replace("@DATA@/trials.csv", str(tmp_path / "t.csv")))
+    assert "no spike falls inside its trial's recorded extent: is time_unit = 's' right" in line

@@ -23,7 +23,8 @@ def written(us: int, unit: str) -> str:
                 min_size=1, max_size=40),
        st.integers(0, 10 ** 12), st.sampled_from(["s", "ms"]), st.sampled_from(["aligned", "trial", "session"]))
 def test_exact_decimal_times_bin_as_integer_arithmetic(rel_us, onset_us, unit, clock):
-    onset = 0 if clock == "aligned" else onset_us
+    # on a trial clock the trial starts at 0, so the onset comes at least 50 ms after it
+    onset = {"aligned": 0, "trial": 50_000 + onset_us % 10 ** 6, "session": onset_us}[clock]
     spikes = pd.DataFrame({"unit": "u", "key0": "1", "time": [written(onset + r, unit) for r in rel_us]})
     trials = pd.DataFrame({"key0": ["1"], "level": [10.0]})
     if clock != "aligned":
