@@ -124,7 +124,7 @@ def run(argv: Sequence[str] | None = None) -> int:
             finally:
                 for warning in caught:
                     if issubclass(warning.category, FigspecWarning):
-                        print(f"warning: {warning.message}", file=sys.stderr)
+                        print(f"{path}: warning: {warning.message}", file=sys.stderr)
                 caught.clear()
     return EXIT_USER if failed else EXIT_OK
 

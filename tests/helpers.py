@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import contextlib
 from pathlib import Path
 
 import pandas as pd
@@ -108,3 +109,17 @@ def compute_panel(rec, panel_model, levels=None):
 
 # the minimal spec at two levels: a small figure for tests that render several times
 SMALL_SPEC = MINIMAL_SPEC.replace('unit = "u2"\n', 'unit = "u2"\nlevels = [40, 80]\n')
+
+
+@contextlib.contextmanager
+def figspec_warnings():
+    """Record the scientist-facing warnings a demo figure gives (e.g. a poorly constrained fit,
+    which the figure and its legend also say), which the pytest configuration would otherwise
+    raise; any other warning still raises."""
+    import warnings
+
+    from figspec.errors import FigspecWarning
+
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", FigspecWarning)
+        yield caught

@@ -10,7 +10,7 @@ from figspec import pipeline
 from figspec.draw.context import styled
 from figspec.output.drawn import drawn_texts as visible_texts
 
-from helpers import SPECS, draw_now
+from helpers import SPECS, draw_now, figspec_warnings
 
 DEMOS = sorted(SPECS.glob("*.toml"))
 SLACK_PX = 0.5
@@ -29,7 +29,7 @@ def overlap(a, b):
 @pytest.fixture(scope="module", params=DEMOS, ids=[p.stem for p in DEMOS])
 def figure(request):
     resolved = pipeline.resolve(pipeline.load(request.param))
-    with styled(resolved.style):
+    with figspec_warnings(), styled(resolved.style):
         fig = pipeline.draw(resolved, pipeline.compute(resolved))
         draw_now(fig)
         yield fig

@@ -49,12 +49,16 @@ def test_a_failed_fit_still_renders_the_data(tmp_path):
     from figspec.errors import FigspecWarning
 
     text = MINIMAL_SPEC.replace("[stimulus]", '[levels]\nunit = "dB SPL"\nscale = "pressure_db"\n\n[stimulus]') + (
-        '\n[[panels]]\nname = "lat"\nkind = "latency"\nunit = "u2"\nlevels = [60, 70, 80]\nfit = "pieron"\n')
-    with pytest.warns(FigspecWarning, match="pieron fit ill-conditioned"):
+        '\n[[panels]]\nname = "lat"\nkind = "latency"\nunit = "u2"\nlevels = [20, 30, 40, 50]\nfit = "pieron"\n')
+    text = text.replace("width_mm = 100", "width_mm = 183")
+    # u2 responds significantly only from 50 dB: too few responsive levels are left for 3 parameters
+    with pytest.warns(FigspecWarning, match="Piéron fit failed: 1 levels for 3 parameters"):
         written = pipeline.render(write_spec(tmp_path, text), tmp_path / "out", ["png"]).files
     assert (tmp_path / "out" / "spec.png") in written
     import pandas as pd
 
     params = pd.read_csv(tmp_path / "out" / "spec_data" / "lat_params.csv")
-    assert params.set_index("quantity").loc["status", "note"] == "ill-conditioned"
+    assert params.set_index("quantity").loc["status", "note"].startswith("failed")
     assert pd.read_csv(tmp_path / "out" / "spec_data" / "lat_fit.csv").empty
+    points = pd.read_csv(tmp_path / "out" / "spec_data" / "lat_points.csv")
+    assert points["note"].str.contains("left out of the fit: no significant response").sum() == 3

@@ -1,15 +1,24 @@
 """Tables of a fitted level function, shared by the kinds with level on x: the curve on a fine
-grid (only for fits that worked), and a long table of parameters with CIs, status, goodness of
-fit and derived levels. Fits that fail say so in the tables and a warning."""
+grid (for fits that are drawn), and a long table of parameters with intervals, the weighting,
+the status with its reasons, goodness of fit and derived levels.
+
+Intervals come from a bootstrap over trials: each level's trials are resampled with
+replacement (seeded per panel, unit and level), the points recomputed and the model refitted
+from the estimate; the interval is the percentile interval of the refits, so it stays within
+the parameter bounds. Fits that fail say so in the tables and a warning."""
 
 from __future__ import annotations
 
 import warnings
+from dataclasses import dataclass
+from typing import Callable
 
 import numpy as np
 import pandas as pd
 
-from figspec.compute.fits import FitResult, derived_naka_rushton, fit, naka_rushton, pieron
+from figspec.compute.decibels import to_linear
+from figspec.compute.fits import MODELS, FitResult, derived_naka_rushton, goodness_of_fit, judge, least_squares, setup
+from figspec.compute.resampling import generator
 from figspec.errors import FigspecWarning
 from figspec.spec.models import LevelSpec
 
@@ -18,42 +27,125 @@ PARAM_COLUMNS = ["unit", "model", "quantity", "value", "ci_low", "ci_high", "uni
 MODEL_NAMES = {"naka_rushton": "Naka–Rushton", "pieron": "Piéron"}
 
 
+@dataclass(frozen=True)
+class UnitPoints:
+    """What one unit's fit is made from: each level's per-trial values (None where trials cannot
+    be resampled), the statistic that makes a point of them, and each level's SE floor (None:
+    the fit is unweighted)."""
+
+    levels: np.ndarray
+    values: list[np.ndarray] | None
+    points: np.ndarray
+    statistic: Callable | None = None
+    floor: np.ndarray | None = None
+
+
 def empty_params() -> pd.DataFrame:
     return pd.DataFrame(columns=PARAM_COLUMNS)
 
 
-def fit_tables(points: pd.DataFrame, y: str, sigma: pd.Series | None, model: str, levels: LevelSpec,
-               confidence: float, value_unit: str) -> tuple[pd.DataFrame, list[list]]:
-    """(curve table with columns unit, level, ``y``; parameter rows as ``PARAM_COLUMNS``) of
-    ``model`` fitted to each unit's points."""
-    curves, params = [], []
+def _sigma(values: list[np.ndarray], floor: np.ndarray) -> np.ndarray:
+    """Each level's SEM (ddof = 1), never below its floor."""
+    sem = np.array([np.std(v, ddof=1) / np.sqrt(v.size) if v.size > 1 else 0.0 for v in values])
+    return np.maximum(sem, floor)
+
+
+def bootstrap(model: str, data: UnitPoints, estimate: np.ndarray, scale: str, resamples: int, seed: int,
+              unit: str) -> tuple[np.ndarray, float]:
+    """(refitted parameters, one row per successful refit; the share of refits that failed)."""
+    weighted = data.floor is not None
+    boot_y = np.empty((resamples, data.levels.size))
+    boot_s = np.empty((resamples, data.levels.size)) if weighted else None
+    for i, (lv, v) in enumerate(zip(data.levels, data.values)):
+        idx = generator(seed, unit, lv).integers(0, v.size, size=(resamples, v.size))
+        sample = v[idx]
+        boot_y[:, i] = data.statistic(sample, axis=1)
+        if weighted:
+            sem = sample.std(axis=1, ddof=1) / np.sqrt(v.size) if v.size > 1 else np.zeros(resamples)
+            boot_s[:, i] = np.maximum(sem, data.floor[i])
+    fits = [least_squares(model, data.levels, boot_y[b], boot_s[b] if weighted else None, scale, estimate)
+            for b in range(resamples)]
+    good = [p for p in fits if p is not None]
+    return (np.array(good) if good else np.empty((0, estimate.size))), 1.0 - len(good) / resamples
+
+
+def fit_unit(model: str, data: UnitPoints, scale: str, confidence: float, resamples: int, seed: int,
+             unit: str) -> tuple[FitResult, np.ndarray]:
+    """The fit of one unit and its bootstrap refits."""
+    f, names, _, bounds = setup(model, data.levels, data.points, scale) if data.levels.size else (None, (), None, ())
+    n_par = 4 if model == "naka_rushton" else 3
+    empty = np.full(n_par, np.nan)
+    names = names or (("R0", "Rmax", "L50", "n") if model == "naka_rushton" else ("t0", "k", "beta"))
+    if data.levels.size <= n_par:
+        reason = f"{data.levels.size} levels for {n_par} parameters: at least {n_par + 1} are needed"
+        return FitResult(model, names, empty, empty, empty, "failed", (reason,)), np.empty((0, n_par))
+    sigma = _sigma(data.values, data.floor) if data.floor is not None else None
+    estimate = least_squares(model, data.levels, data.points, sigma, scale)
+    if estimate is None:
+        return FitResult(model, names, empty, empty, empty, "failed", ("the optimiser found no fit",)), \
+            np.empty((0, n_par))
+    goodness = goodness_of_fit(f, estimate, data.levels, data.points, sigma)
+    if data.values is None:
+        refits, failed = np.empty((0, n_par)), 0.0
+        extra = ("no interval: one value per level, so there are no trials to resample",)
+    else:
+        refits, failed = bootstrap(model, data, estimate, scale, resamples, seed, unit)
+        extra = ()
+    tail = (1 - confidence) / 2
+    low, high = (np.quantile(refits, [tail, 1 - tail], axis=0) if len(refits) else (empty, empty))
+    reasons = judge(model, names, estimate, low, high, bounds, data.levels, goodness, failed)
+    status = "poorly constrained" if reasons else "ok"
+    return FitResult(model, names, estimate, low, high, status, reasons + extra, goodness, sigma is not None,
+                     bounds), refits
+
+
+def fit_tables(by_unit: dict[str, UnitPoints], y: str, model: str, levels: LevelSpec, panel,
+               value_unit: str, weighting: str) -> tuple[pd.DataFrame, list[list]]:
+    """(curve table: unit, level, ``y``, status; parameter rows as ``PARAM_COLUMNS``)."""
     scale = levels.scale or "linear"
-    level_unit = levels.unit
-    units_of = {"R0": value_unit, "Rmax": value_unit, "L50": level_unit, "x50": level_unit, "n": "",
+    units_of = {"R0": value_unit, "Rmax": value_unit, "L50": levels.unit, "x50": levels.unit, "n": "",
                 "t0": "ms", "k": "ms", "beta": ""}
-    for unit, rows in points.groupby("unit", sort=False):
-        s = None if sigma is None else sigma.loc[rows.index].to_numpy()
-        result: FitResult = fit(model, rows["level"].to_numpy(), rows[y].to_numpy(), s, scale, confidence)
-        note = result.message if not result.ok else ("weighted" if result.weighted else "unweighted")
-        for name, est, lo, hi in zip(result.names, result.estimate, result.ci_low, result.ci_high):
-            params.append([unit, model, name, est, lo, hi, units_of[name], note])
-        params.append([unit, model, "status", np.nan, np.nan, np.nan, "", result.status])
-        for key, value in result.goodness.items():
-            params.append([unit, model, key, value, np.nan, np.nan, "", ""])
-        if model == "naka_rushton":
-            for key, value in derived_naka_rushton(result, scale).items():
-                what = "ratio x90/x10" if key == "dynamic_range" and scale == "linear" else level_unit
-                params.append([unit, model, key, value, np.nan, np.nan, what,
-                               "fit reaches 10 % of its driven range" if key == "level_10" else ""])
-        if result.ok:
-            grid = np.linspace(rows["level"].min(), rows["level"].max(), CURVE_POINTS)
-            f = (naka_rushton if model == "naka_rushton" else pieron)(grid, scale)[0]
-            curves.append(pd.DataFrame({"unit": unit, "level": grid, y: f(grid, *result.estimate)}))
-        else:
-            warnings.warn(f"unit {unit}: {model} fit {result.status}: {result.message} (drawn without a curve)",
+    curves, params = [], []
+    for unit, data in by_unit.items():
+        result, refits = fit_unit(model, data, scale, panel.confidence, panel.fit_resamples, panel.seed, unit)
+        note = f"{result.status}" + (f": {result.message}" if result.message else "")
+        params.append([unit, model, "status", np.nan, np.nan, np.nan, "", note])
+        params.append([unit, model, "weighting", np.nan, np.nan, np.nan, "", weighting if result.weighted else "unweighted"])
+        interval = f"{panel.confidence:.0%} bootstrap percentile interval over trials ({len(refits)} refits)"
+        for i, name in enumerate(result.names):
+            params.append([unit, model, name, result.estimate[i], result.ci_low[i], result.ci_high[i], units_of[name],
+                           interval if len(refits) else ""])
+        params += [[unit, model, key, value, np.nan, np.nan, "", ""] for key, value in result.goodness.items()]
+        if model == "naka_rushton" and result.drawn:
+            params += _derived_rows(unit, result, refits, scale, levels.unit, panel.confidence)
+        if result.drawn:
+            grid = np.linspace(data.levels.min(), data.levels.max(), CURVE_POINTS)
+            f = MODELS[model](grid, scale)[0]
+            curves.append(pd.DataFrame({"unit": unit, "level": grid, y: f(grid, *result.estimate),
+                                        "status": result.status}))
+        if not result.ok:
+            warnings.warn(f"unit {unit}: {MODEL_NAMES[model]} fit {result.status}: {result.message}"
+                          + (" (drawn dashed)" if result.drawn else " (drawn without a curve)"),
                           FigspecWarning, stacklevel=3)
-    curve = pd.concat(curves, ignore_index=True) if curves else pd.DataFrame(columns=["unit", "level", y])
+    curve = pd.concat(curves, ignore_index=True) if curves else pd.DataFrame(columns=["unit", "level", y, "status"])
     return curve, params
+
+
+def _derived_rows(unit, result: FitResult, refits, scale, level_unit, confidence) -> list[list]:
+    derived = derived_naka_rushton(result.estimate, scale)
+    boot = [derived_naka_rushton(p, scale) for p in refits]
+    rows = []
+    for key, value in derived.items():
+        what = "ratio x90/x10" if key == "dynamic_range" and scale == "linear" else level_unit
+        if not result.ok:
+            rows.append([unit, "naka_rushton", key, np.nan, np.nan, np.nan, what,
+                         f"unavailable: the fit is {result.status}"])
+            continue
+        tail = (1 - confidence) / 2
+        low, high = np.quantile([b[key] for b in boot], [tail, 1 - tail]) if boot else (np.nan, np.nan)
+        rows.append([unit, "naka_rushton", key, value, low, high, what,
+                     "from the fit; interval from the bootstrap refits"])
+    return rows
 
 
 def fit_rows(panel, params: pd.DataFrame) -> list[list]:
@@ -62,19 +154,24 @@ def fit_rows(panel, params: pd.DataFrame) -> list[list]:
             for r in params.itertuples(index=False)]
 
 
-def fit_sentence(model: str, params: pd.DataFrame, level_unit: str) -> str:
-    """What the legend says of the fits: which were drawn, and how they were weighted."""
-    status = params[params["quantity"] == "status"]
-    drawn = status[status["note"] == "ok"]["unit"].tolist()
-    if not drawn:
-        return f" No {MODEL_NAMES[model]} fit is drawn (no fit succeeded; see the statistics table)."
-    notes = set(params[(params["unit"].isin(drawn)) & params["note"].isin(["weighted", "unweighted"])]["note"])
-    if notes == {"weighted"}:
-        how = "weighted least squares"
-    elif notes == {"unweighted"}:
-        how = "unweighted least squares"
-    else:
-        how = "least squares (weighted for units whose every point had an error > 0)"
-    missing = sorted(set(status["unit"]) - set(drawn))
-    text = f" Curves: {MODEL_NAMES[model]} fits by {how} on the linear level ({level_unit})"
-    return text + (f"; not drawn for {', '.join(missing)} (fit not ok)." if missing else ".")
+def fit_sentence(model: str, params: pd.DataFrame, level_unit: str, confidence: float) -> str:
+    """What the legend says of the fits: how they were weighted, how intervals were found, and
+    which were drawn solid, dashed or not at all."""
+    status = params[params["quantity"] == "status"].set_index("unit")["note"].str.split(":").str[0]
+    weighting = params[params["quantity"] == "weighting"].set_index("unit")["note"]
+    name = MODEL_NAMES[model]
+    if status.empty:
+        return ""
+    how = "; ".join(sorted(set(weighting)))
+    text = (f" Curves: {name} fits on the linear level ({level_unit}), {how}; parameter intervals: "
+            f"{confidence:.0%} bootstrap over trials.")
+    for label, units in (("poorly constrained, drawn dashed", status[status == "poorly constrained"].index),
+                         ("failed, not drawn", status[status == "failed"].index)):
+        if len(units):
+            text += f" {name} fit {label}: {', '.join(units)} (reasons in the statistics table)."
+    return text
+
+
+def linear_positive(levels: np.ndarray, scale: str) -> np.ndarray:
+    """Levels whose linear quantity is > 0 (a Pieron fit cannot use the others)."""
+    return to_linear(levels, scale) > 0

@@ -12,9 +12,10 @@ import pandas as pd
 
 from figspec.compute import level_checks
 from figspec.compute.describe import About, count_text, unit_text
-from figspec.compute.fit_tables import empty_params, fit_rows, fit_sentence, fit_tables
+from figspec.compute.fit_tables import UnitPoints, empty_params, fit_rows, fit_sentence, fit_tables, linear_positive
+from figspec.compute.resampling import generator, key_order
 from figspec.compute.selection import select, spanning
-from figspec.compute.stats import bootstrap_ci
+from figspec.compute.stats import bootstrap_ci, holm, signed_rank_p
 from figspec.compute.trial_counts import counts_in, first_spikes, level_bin_counts
 from figspec.data.recording import Recording
 from figspec.spec.models import LevelSpec
@@ -29,19 +30,26 @@ def _selection(rec: Recording, unit: str, panel: LatencyPanel):
     return select(rec, unit, spanning(panel.baseline_ms, panel.response_ms), panel.levels)
 
 
+def first_spike_times(rec: Recording, unit: str, panel: LatencyPanel) -> dict[float, np.ndarray]:
+    """Each level's first-spike time (ms; NaN without a spike) of every trial, in key order."""
+    sel = _selection(rec, unit, panel)
+    first = first_spikes(sel, panel.response_ms)
+    out = {}
+    for i, lv in enumerate(sel.levels):
+        at = np.flatnonzero(sel.trial_level == i)
+        out[float(lv)] = first[at[key_order(sel.trials["trial"].to_numpy()[at])]]
+    return out
+
+
 def first_spike_latency(rec: Recording, unit: str, panel: LatencyPanel) -> pd.DataFrame:
     """Median first-spike time per level in ``[response start, response stop)`` with a
     percentile bootstrap CI across trials. Trials with no spike there are counted in
     ``n_no_spike`` and left out of the median: they are not zero-latency trials."""
-    sel = _selection(rec, unit, panel)
-    first = first_spikes(sel, panel.response_ms)
-    rng = np.random.default_rng(panel.seed)
     rows = []
-    for i, lv in enumerate(sel.levels):
-        times = first[sel.trial_level == i]
+    for lv, times in first_spike_times(rec, unit, panel).items():
         valid = times[~np.isnan(times)]
         median = float(np.median(valid)) if valid.size else np.nan
-        low, high = bootstrap_ci(valid, np.median, panel.confidence, panel.resamples, rng)
+        low, high = bootstrap_ci(valid, np.median, panel.confidence, panel.resamples, generator(panel.seed, unit, lv))
         note = "" if valid.size >= 2 else "fewer than two trials with a spike"
         rows.append((unit, lv, times.size, int(np.isnan(times).sum()), median, low, high, "first_spike", note))
     return pd.DataFrame(rows, columns=list(COLUMNS))
@@ -110,7 +118,7 @@ METHODS = {"first_spike": first_spike_latency, "threshold": threshold_latency, "
 
 
 def latency_points(rec: Recording, panel: LatencyPanel) -> pd.DataFrame:
-    """Latency per unit and level by the panel's method.
+    """Latency per unit and level by the panel's method, with the per-level response test.
 
     Columns
     -------
@@ -121,24 +129,63 @@ def latency_points(rec: Recording, panel: LatencyPanel) -> pd.DataFrame:
     ci_low_ms, ci_high_ms : (first_spike) percentile bootstrap CI of the median.
     method : which estimator.
     note : why a value is missing, or a caveat.
+    p_holm : one-sided Wilcoxon signed-rank test of the response rate against the baseline rate
+        per trial, Holm-corrected across the unit's levels (as the level_response panel tests).
+    responsive : p_holm < alpha: the level drives a response, so its latency means something.
+    in_fit : the level's latency enters the Pieron fit (responsive unless ``fit_levels = "all"``,
+        a latency, and a level whose linear quantity is > 0).
     """
-    return pd.concat([METHODS[panel.method](rec, u, panel) for u in panel.unit_names()], ignore_index=True)
+    frames = []
+    for unit in panel.unit_names():
+        frame = METHODS[panel.method](rec, unit, panel)
+        frame["p_holm"] = _response_test(rec, unit, panel)
+        frames.append(frame)
+    out = pd.concat(frames, ignore_index=True)
+    out["responsive"] = out["p_holm"] < panel.alpha
+    out["in_fit"] = out["latency_ms"].notna() & (out["responsive"] | (panel.fit_levels == "all"))
+    return out
+
+
+def _response_test(rec: Recording, unit: str, panel: LatencyPanel) -> np.ndarray:
+    """Holm-corrected p of response rate > baseline rate per trial, per level (rates, so the
+    windows may differ in length)."""
+    sel = _selection(rec, unit, panel)
+    evoked = counts_in(sel, panel.response_ms) / ((panel.response_ms[1] - panel.response_ms[0]) * 1e-3)
+    base = counts_in(sel, panel.baseline_ms) / ((panel.baseline_ms[1] - panel.baseline_ms[0]) * 1e-3)
+    p = [signed_rank_p(evoked[sel.trial_level == i], base[sel.trial_level == i], panel.zero_differences)[1]
+         for i in range(sel.levels.size)]
+    return holm(np.asarray(p, dtype=float))
 
 
 def compute(rec: Recording, panel: LatencyPanel, levels: LevelSpec) -> dict[str, pd.DataFrame]:
-    """``points`` (see :func:`latency_points`), ``fit`` (unit, level, latency_ms on a fine grid)
-    and ``params`` (Pieron parameters with CIs, status and goodness of fit)."""
-    from scipy.stats import norm
-
+    """``points`` (see :func:`latency_points`), ``fit`` (unit, level, latency_ms on a fine grid,
+    status) and ``params`` (Pieron status with reasons, parameters with bootstrap intervals,
+    goodness of fit). Levels not in the fit are named in the points' ``note``."""
     points = latency_points(rec, panel)
     params: list[list] = []
-    curve = pd.DataFrame(columns=["unit", "level", "latency_ms"])
+    curve = pd.DataFrame(columns=["unit", "level", "latency_ms", "status"])
     if panel.fit != "none":
-        # the CI's half-width over the normal quantile stands in for the SD of each median
-        sigma = (points["ci_high_ms"] - points["ci_low_ms"]) / 2 / norm.ppf(0.5 + panel.confidence / 2)
-        curve, params = fit_tables(points, "latency_ms", sigma, "pieron", levels, panel.confidence, "ms")
+        scale = levels.scale or "linear"
+        positive = linear_positive(points["level"].to_numpy(dtype=float), scale)
+        points.loc[~positive & points["in_fit"], "note"] = _joined(points.loc[~positive & points["in_fit"], "note"],
+                                                                   "left out of the Pieron fit: level <= 0 on its linear scale")
+        points["in_fit"] &= positive
+        left_out = points["latency_ms"].notna() & ~points["responsive"] & (panel.fit_levels == "responsive")
+        points.loc[left_out, "note"] = _joined(points.loc[left_out, "note"], "left out of the fit: no significant response")
+        by_unit = {}
+        for unit, rows in points.groupby("unit", sort=False):
+            rows = rows[rows["in_fit"]]
+            samples = first_spike_times(rec, unit, panel) if panel.method == "first_spike" else None
+            values = [samples[float(lv)][~np.isnan(samples[float(lv)])] for lv in rows["level"]] if samples else None
+            by_unit[unit] = UnitPoints(rows["level"].to_numpy(dtype=float), values,
+                                       rows["latency_ms"].to_numpy(dtype=float), np.median if samples else None)
+        curve, params = fit_tables(by_unit, "latency_ms", "pieron", levels, panel, "ms", "unweighted")
     table = pd.DataFrame(params, columns=empty_params().columns) if params else empty_params()
     return {"points": points, "fit": curve, "params": table}
+
+
+def _joined(notes: pd.Series, text: str) -> pd.Series:
+    return notes.where(notes == "", notes + "; ") .fillna("") + text
 
 
 def statistics(panel: LatencyPanel, tables: dict[str, pd.DataFrame]) -> list[list]:
@@ -157,9 +204,17 @@ def legend(panel: LatencyPanel, tables: dict[str, pd.DataFrame], about: About) -
             f"{panel.response_ms[0]:g}–{panel.response_ms[1]:g} ms, n = {count_text(points['n_trials'])} trials "
             f"per level; units {unit_text(points)}.")
     if panel.method == "first_spike":
+        no_spike = points.groupby("unit")["n_no_spike"].sum().astype(int)
         text += (f" Points: median over trials with a spike; error bars: {panel.confidence:.0%} percentile "
                  f"bootstrap CI ({panel.resamples} resamples); trials without a spike are not counted as "
-                 "zero latency.")
+                 f"zero latency (trials without a spike: {', '.join(f'{u} {n}' for u, n in no_spike.items())}).")
+    if points["unit"].nunique() > 1:
+        text += " Units are offset slightly along the level axis so every marker and error bar shows."
+    left_out = points[~points["in_fit"] & points["latency_ms"].notna()] if panel.fit != "none" else points.iloc[:0]
+    text += (f" Open markers: levels without a significant response (one-sided Wilcoxon signed-rank test of "
+             f"response vs baseline rate per trial, Holm-corrected, p >= {panel.alpha:g}).")
+    if len(left_out):
+        text += f" {len(left_out)} unit-levels were left out of the fit (named in the source data)."
     if panel.fit != "none":
-        text += fit_sentence(panel.fit, tables["params"], about.level_unit)
+        text += fit_sentence(panel.fit, tables["params"], about.level_unit, panel.confidence)
     return text

@@ -15,9 +15,10 @@ def check(rec: Recording, panel, levels: LevelSpec) -> list[Problem]:
     shown = rec.levels if panel.levels is None else np.asarray(panel.levels, dtype=float)
     problems = []
     model = panel.fitted_model()
-    if model is not None and len(shown) < FIT_PARAMETERS[model]:
+    if model is not None and len(shown) <= FIT_PARAMETERS[model]:
         problems.append(Problem(f"a {model} fit has {FIT_PARAMETERS[model]} parameters but the panel shows "
-                                f"only {len(shown)} levels", ("fit",), repr(model)))
+                                f"only {len(shown)} levels (at least {FIT_PARAMETERS[model] + 1} are needed)",
+                                ("fit",), repr(model)))
     if panel.level_axis == "log" and np.any(shown <= 0):
         problems.append(Problem("a logarithmic level axis needs every level > 0", ("level_axis",),
                                 f"levels from {shown.min():g}"))

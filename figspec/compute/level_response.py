@@ -3,93 +3,82 @@ against baseline and an optional Naka-Rushton fit."""
 
 from __future__ import annotations
 
-import warnings
-
 import numpy as np
 import pandas as pd
 
 from figspec.compute import level_checks
 from figspec.compute.describe import About, count_text, unit_text
-from figspec.compute.fit_tables import empty_params, fit_rows, fit_sentence, fit_tables
+from figspec.compute.fit_tables import UnitPoints, empty_params, fit_rows, fit_sentence, fit_tables
+from figspec.compute.resampling import generator, key_order
 from figspec.compute.selection import select, spanning
-from figspec.compute.stats import bootstrap_ci, holm, sem
+from figspec.compute.stats import ZERO_TEXT, bootstrap_ci, holm, sem, signed_rank_p
 from figspec.compute.trial_counts import counts_in
 from figspec.data.recording import Recording
 from figspec.spec.models import LevelSpec
 from figspec.spec.panels import LevelResponsePanel
 
-# the spec's names for how trials with equal evoked and baseline counts are treated, and
-# scipy.stats.wilcoxon's: dropped (Wilcoxon 1945), kept in the ranking (Pratt 1959), or their
-# ranks split between the signs
-ZERO_DIFFERENCES = {"drop": "wilcox", "keep": "pratt", "split": "zsplit"}
-ZERO_TEXT = {"drop": "dropped", "keep": "kept in the ranking (Pratt)", "split": "ranked and split between signs"}
-
 check = level_checks.check
 
 
 def per_trial_responses(rec: Recording, unit: str, panel: LevelResponsePanel):
-    """(levels of the trials, evoked counts, baseline counts) for every trial presented."""
+    """(levels, evoked counts, baseline counts) of every trial presented, trials in key order
+    within each level (so resampling does not depend on the order of rows in the data)."""
     sel = select(rec, unit, spanning(panel.response_ms, panel.baseline_ms), panel.levels)
-    return sel.trials["level"].to_numpy(), counts_in(sel, panel.response_ms), counts_in(sel, panel.baseline_ms)
+    order = np.lexsort((key_order(sel.trials["trial"].to_numpy()).argsort(), sel.trial_level))
+    return (sel.trials["level"].to_numpy()[order], counts_in(sel, panel.response_ms)[order],
+            counts_in(sel, panel.baseline_ms)[order])
 
 
-def signed_rank_p(evoked: np.ndarray, baseline: np.ndarray, zero_differences: str) -> tuple[float, float]:
-    """One-sided Wilcoxon signed-rank test, evoked > baseline (scipy.stats.wilcoxon), zero
-    differences treated as ``zero_differences`` says. Returns (statistic, p); NaNs when every
-    difference is zero or fewer than two trials."""
-    from scipy.stats import wilcoxon
-
-    d = evoked.astype(float) - baseline
-    if d.size < 2 or np.all(d == 0):
-        return np.nan, np.nan
-    zero_method = ZERO_DIFFERENCES[zero_differences]
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore")          # scipy notes ties and small samples; stated in docs
-        result = wilcoxon(evoked, baseline, alternative="greater", zero_method=zero_method)
-    return float(result.statistic), float(result.pvalue)
+def unit_values(rec: Recording, panel: LevelResponsePanel, unit: str):
+    """(levels, per-trial responses of each level, per-trial evoked and baseline values of each
+    level): counts, or rates (count / window length, s) for ``spikes_per_s``, which may compare
+    windows of any lengths."""
+    level, evoked, base = per_trial_responses(rec, unit, panel)
+    scale_e, scale_b = 1.0, 1.0
+    if panel.measure == "spikes_per_s":
+        scale_e = 1e3 / (panel.response_ms[1] - panel.response_ms[0])
+        scale_b = 1e3 / (panel.baseline_ms[1] - panel.baseline_ms[0])
+    levels = np.unique(level)
+    pairs = [(evoked[level == lv] * scale_e, base[level == lv] * scale_b) for lv in levels]
+    values = [e - b if panel.subtract_baseline else e.astype(float) for e, b in pairs]
+    return levels, values, pairs
 
 
 def response_points(rec: Recording, panel: LevelResponsePanel) -> pd.DataFrame:
     """Response per unit and level in the response window.
 
     The per-trial response is the count in ``response_ms`` (or count / window length in s for
-    ``spikes_per_s``), less the same trial's baseline count over the equally long
-    ``baseline_ms`` when ``subtract_baseline``. Every trial presented counts, with or without
-    spikes.
+    ``spikes_per_s``), less the same trial's baseline count (or rate) when ``subtract_baseline``.
+    Every trial presented counts, with or without spikes.
 
     Columns
     -------
     unit, level, n_trials : as elsewhere.
     response : mean per-trial response (``response_unit``).
     error_low, error_high : mean - SEM and mean + SEM (``error`` = "sem", ddof = 1), or the
-        percentile bootstrap CI of the mean.
+        percentile bootstrap CI of the mean (seeded per panel, unit and level).
     baseline : mean baseline response in the same unit.
     error_kind : what the error bounds are.
-    statistic, p : one-sided Wilcoxon signed-rank test of evoked > baseline counts per trial
-        (zero differences treated as ``zero_differences`` says), empty when all differences
-        are zero.
+    statistic, p : one-sided Wilcoxon signed-rank test of evoked > baseline per trial (counts,
+        or rates for ``spikes_per_s``; zero differences treated as ``zero_differences``
+        says), empty when all differences are zero.
     p_holm : p adjusted by Holm across the levels of the unit.
     significant : p_holm < alpha.
     """
-    duration_s = (panel.response_ms[1] - panel.response_ms[0]) * 1e-3
-    scale = 1.0 / duration_s if panel.measure == "spikes_per_s" else 1.0
-    rng = np.random.default_rng(panel.seed)
     rows = []
     for unit in panel.unit_names():
-        level, evoked, base = per_trial_responses(rec, unit, panel)
+        levels, values, pairs = unit_values(rec, panel, unit)
         unit_rows = []
-        for lv in np.unique(level):
-            e, b = evoked[level == lv], base[level == lv]
-            values = (e - b if panel.subtract_baseline else e) * scale
-            mean = float(values.mean())
+        for lv, v, (e, b) in zip(levels, values, pairs):
+            mean = float(v.mean())
             if panel.error == "sem":
-                s = sem(values)
+                s = sem(v)
                 low, high, kind = mean - s, mean + s, "mean +/- SEM"
             else:
-                low, high = bootstrap_ci(values, np.mean, panel.confidence, panel.resamples, rng)
+                low, high = bootstrap_ci(v, np.mean, panel.confidence, panel.resamples, generator(panel.seed, unit, lv))
                 kind = f"{panel.confidence:.0%} bootstrap CI of the mean"
             stat, p = signed_rank_p(e, b, panel.zero_differences) if panel.test == "wilcoxon" else (np.nan, np.nan)
-            unit_rows.append([unit, lv, e.size, mean, low, high, float(b.mean() * scale), kind, stat, p])
+            unit_rows.append([unit, lv, e.size, mean, low, high, float(b.mean()), kind, stat, p])
         frame = pd.DataFrame(unit_rows, columns=["unit", "level", "n_trials", "response", "error_low",
                                                  "error_high", "baseline", "error_kind", "statistic", "p"])
         frame["p_holm"] = holm(frame["p"].to_numpy())
@@ -102,18 +91,30 @@ def response_points(rec: Recording, panel: LevelResponsePanel) -> pd.DataFrame:
     return out
 
 
+# SEM of one spike among n trials: values (1, 0, ..., 0) have SD sqrt(1/n) and SEM 1/n (spikes),
+# i.e. 1/(n T) spikes/s over a window of T s: the smallest error a level's mean count can show.
+WEIGHTING = ("weighted by 1/SE^2 of each level's mean, the SE floored at that of one spike among the "
+             "level's trials (1/n spikes, 1/(n T) spikes/s)")
+
+
 def compute(rec: Recording, panel: LevelResponsePanel, levels: LevelSpec) -> dict[str, pd.DataFrame]:
     """``points`` (see :func:`response_points`), ``fit`` (unit, level, response on a fine grid,
-    only for fits that worked) and ``params`` (long table: fit parameters with CIs, status,
-    goodness of fit, derived levels, and the threshold by test: the lowest level whose
-    Holm-corrected test is significant)."""
+    status; for fits that are drawn) and ``params`` (long table: fit status with its reasons,
+    weighting, parameters with bootstrap intervals, goodness of fit, derived levels, and the
+    threshold by test: the lowest level whose Holm-corrected test is significant)."""
     points = response_points(rec, panel)
     value_unit = str(points["response_unit"].iloc[0])
     params: list[list] = []
-    curve = pd.DataFrame(columns=["unit", "level", "response"])
+    curve = pd.DataFrame(columns=["unit", "level", "response", "status"])
     if panel.fit != "none":
-        sigma = points["error_high"] - points["response"] if panel.error == "sem" else None
-        curve, params = fit_tables(points, "response", sigma, panel.fit, levels, panel.confidence, value_unit)
+        window_s = (panel.response_ms[1] - panel.response_ms[0]) * 1e-3
+        by_unit = {}
+        for unit in panel.unit_names():
+            lv, values, _ = unit_values(rec, panel, unit)
+            n = np.array([v.size for v in values], dtype=float)
+            floor = 1.0 / n / (window_s if panel.measure == "spikes_per_s" else 1.0)
+            by_unit[unit] = UnitPoints(lv, values, np.array([v.mean() for v in values]), np.mean, floor)
+        curve, params = fit_tables(by_unit, "response", panel.fit, levels, panel, value_unit, WEIGHTING)
     if panel.test != "none":
         for unit, rows in points.groupby("unit", sort=False):
             sig = rows.loc[rows["significant"], "level"]
@@ -148,5 +149,5 @@ def legend(panel: LevelResponsePanel, tables: dict[str, pd.DataFrame], about: Ab
                  f"{ZERO_TEXT[panel.zero_differences]}, Holm-corrected across levels within each unit; filled "
                  f"markers: p < {panel.alpha:g}.")
     if panel.fit != "none":
-        text += fit_sentence(panel.fit, tables["params"], about.level_unit)
+        text += fit_sentence(panel.fit, tables["params"], about.level_unit, panel.confidence)
     return text

@@ -1,7 +1,9 @@
-"""Small statistics shared by the summary computations: SEM, percentile bootstrap, Holm."""
+"""Small statistics shared by the summary computations: SEM, percentile bootstrap, Holm, the
+one-sided signed-rank test of evoked against baseline."""
 
 from __future__ import annotations
 
+import warnings
 from typing import Callable
 
 import numpy as np
@@ -46,3 +48,26 @@ def holm(p_values: np.ndarray) -> np.ndarray:
     scaled = np.minimum(1.0, (m - np.arange(m)) * p[order])
     out[order] = np.maximum.accumulate(scaled)
     return out
+
+
+# the spec's names for how trials with equal evoked and baseline counts are treated, and
+# scipy.stats.wilcoxon's: dropped (Wilcoxon 1945), kept in the ranking (Pratt 1959), or their
+# ranks split between the signs
+ZERO_DIFFERENCES = {"drop": "wilcox", "keep": "pratt", "split": "zsplit"}
+ZERO_TEXT = {"drop": "dropped", "keep": "kept in the ranking (Pratt)", "split": "ranked and split between signs"}
+
+
+def signed_rank_p(evoked: np.ndarray, baseline: np.ndarray, zero_differences: str) -> tuple[float, float]:
+    """One-sided Wilcoxon signed-rank test, evoked > baseline (scipy.stats.wilcoxon), zero
+    differences treated as ``zero_differences`` says. Returns (statistic, p); NaNs when every
+    difference is zero or fewer than two trials."""
+    from scipy.stats import wilcoxon
+
+    d = np.asarray(evoked, dtype=float) - baseline
+    if d.size < 2 or np.all(d == 0):
+        return np.nan, np.nan
+    zero_method = ZERO_DIFFERENCES[zero_differences]
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")          # scipy notes ties and small samples; stated in docs
+        result = wilcoxon(evoked, baseline, alternative="greater", zero_method=zero_method)
+    return float(result.statistic), float(result.pvalue)

@@ -10,7 +10,7 @@ import pandas as pd
 
 from figspec.draw.colours import category_gid, unit_colours
 from figspec.draw.context import DrawContext, Labels
-from figspec.draw.level_axis import level_limits, set_level_scale, versus_title
+from figspec.draw.level_axis import draw_fit, level_limits, set_level_scale, unit_offsets, versus_title
 from figspec.spec.models import LevelSpec
 from figspec.spec.panels import LatencyPanel
 
@@ -21,23 +21,33 @@ METHOD_LABELS = {"first_spike": "First-spike latency", "threshold": "Onset laten
 
 
 def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LatencyPanel, ctx: DrawContext) -> None:
+    """Latency per level: filled markers where the level drives a significant response, open
+    where it does not (left out of the fit by default); units offset slightly along x."""
     points, curve = tables["points"], tables["fit"]
     colours = unit_colours(points["unit"], ctx.style)
+    shifts = dict(zip(colours, unit_offsets(points["level"].to_numpy(), len(colours), panel.level_axis)))
     for unit, rows in points.groupby("unit", sort=False):
         c = colours[unit]
-        x, y = rows["level"].to_numpy(), rows["latency_ms"].to_numpy()
+        x, y = rows["level"].to_numpy(dtype=float), rows["latency_ms"].to_numpy(dtype=float)
+        x = x * 10 ** shifts[unit] if panel.level_axis == "log" else x + shifts[unit]
         if rows["ci_low_ms"].notna().any():
             err = np.vstack([y - rows["ci_low_ms"].to_numpy(), rows["ci_high_ms"].to_numpy() - y])
             ax.errorbar(x, y, yerr=np.nan_to_num(err), color=c, linestyle="none", gid=f"errors:{unit}")
-        line = "none" if panel.fit != "none" else "-"
-        ax.plot(x, y, marker="o", linestyle=line, color=c, label=unit, gid=category_gid(unit))
-        fitted = curve[curve["unit"] == unit]
-        if len(fitted):
-            ax.plot(fitted["level"], fitted["latency_ms"], "-", color=c, gid=f"fit:{unit}")
+        if panel.fit == "none":
+            ax.plot(x, y, "-", color=c, gid=f"line:{unit}")
+        responsive = rows["responsive"].to_numpy(dtype=bool)
+        ax.plot(x[responsive], y[responsive], "o", color=c, label=unit, gid=category_gid(unit))
+        ax.plot(x[~responsive], y[~responsive], "o", color="white", markeredgecolor=c, gid=f"points_ns:{unit}")
+        draw_fit(ax, curve[curve["unit"] == unit], "latency_ms", c, unit)
     set_level_scale(ax, panel)
     ax.set_ylim(bottom=0)
-    if len(colours) > 1:
-        ax.legend(loc="upper right", handletextpad=0.2, borderaxespad=0.2)
+    handles, names = ax.get_legend_handles_labels()
+    if len(colours) == 1:
+        handles, names = [], []
+    title = f"open: p \u2265 {panel.alpha:g} (Holm)" if (~points["responsive"]).any() else None
+    if handles or title:                      # "best": where the fewest data points are
+        ax.legend(handles, names, title=title, loc="best", title_fontsize=ctx.style.font.tick_pt,
+                  handletextpad=0.2, borderaxespad=0.2)
 
 
 def labels(panel: LatencyPanel, tables: dict[str, pd.DataFrame], levels: LevelSpec) -> Labels:

@@ -35,3 +35,24 @@ def versus_title(what: str, levels: LevelSpec) -> str:
     quantity = levels.quantity
     shown = quantity if quantity[:2].isupper() else quantity[:1].lower() + quantity[1:]
     return f"{what} vs {shown}"
+
+
+def draw_fit(ax: "Axes", fitted, y: str, colour, unit: str) -> None:
+    """A fitted curve: solid when the fit is ok, dashed when it is poorly constrained (failed
+    fits have no rows)."""
+    for status, rows in fitted.groupby("status", sort=False):
+        ax.plot(rows["level"], rows[y], "-" if status == "ok" else "--", color=colour, gid=f"fit:{unit}:{status}")
+
+
+def unit_offsets(levels: np.ndarray, n_units: int, axis: str) -> np.ndarray:
+    """A small shift along the level axis for each of ``n_units`` (2 % of the smallest level
+    step, centred), so units' markers and error bars at one level do not hide each other; on a
+    log axis, a factor."""
+    levels = np.unique(np.asarray(levels, dtype=float))
+    if n_units < 2 or levels.size < 2:
+        return np.zeros(n_units)
+    if axis == "log":
+        step = float(np.min(np.diff(np.log10(levels[levels > 0])))) if (levels > 0).sum() > 1 else 0.1
+    else:
+        step = float(np.min(np.diff(levels)))
+    return (np.arange(n_units) - (n_units - 1) / 2) * 0.04 * step

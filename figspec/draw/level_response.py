@@ -10,14 +10,19 @@ import pandas as pd
 
 from figspec.draw.colours import category_gid, unit_colours
 from figspec.draw.context import DrawContext, Labels
-from figspec.draw.level_axis import level_limits, set_level_scale, versus_title
+from figspec.draw.level_axis import draw_fit, level_limits, set_level_scale, versus_title
 from figspec.spec.models import LevelSpec
 from figspec.spec.panels import LevelResponsePanel
 
 if TYPE_CHECKING:
     from matplotlib.axes import Axes
 
-RESPONSE_LABELS = {"spikes/s": "Evoked rate (spikes/s)", "spikes": "Evoked spikes per trial"}
+def response_label(panel: LevelResponsePanel, unit: str) -> str:
+    """What the y axis shows: the rate or count in the response window, or above baseline."""
+    if panel.subtract_baseline:
+        return "Rate above baseline (spikes/s)" if unit == "spikes/s" else "Spikes above baseline per trial"
+    window = f"{panel.response_ms[0]:g}–{panel.response_ms[1]:g} ms"
+    return f"Rate in {window} (spikes/s)" if unit == "spikes/s" else f"Spikes in {window} per trial"
 
 
 def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LevelResponsePanel, ctx: DrawContext) -> None:
@@ -36,9 +41,7 @@ def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LevelResponsePanel,
         sig = rows["significant"].to_numpy(dtype=bool) if tested else np.ones(len(rows), bool)
         ax.plot(x[sig], y[sig], "o", color=c, markeredgecolor=c, label=unit, gid=category_gid(unit))
         ax.plot(x[~sig], y[~sig], "o", color="white", markeredgecolor=c, gid=f"points_ns:{unit}")
-        fitted = curve[curve["unit"] == unit]
-        if len(fitted):
-            ax.plot(fitted["level"], fitted["response"], "-", color=c, gid=f"fit:{unit}")
+        draw_fit(ax, curve[curve["unit"] == unit], "response", c, unit)
         thr = params[(params["unit"] == unit) & (params["quantity"] == "threshold_by_test")]["value"]
         if len(thr) and np.isfinite(thr.iloc[0]):
             ax.plot([thr.iloc[0]], [0.0], marker=6, color=c, clip_on=False, linestyle="none",
@@ -65,7 +68,8 @@ def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LevelResponsePanel,
 
 def labels(panel: LevelResponsePanel, tables: dict[str, pd.DataFrame], levels: LevelSpec) -> Labels:
     unit = str(tables["points"]["response_unit"].iloc[0])
-    return Labels(versus_title("Response", levels), levels.axis_label, RESPONSE_LABELS[unit], unit)
+    return Labels(versus_title("Response", levels), levels.axis_label, response_label(panel, unit),
+                  unit)
 
 
 def limits(panel: LevelResponsePanel, tables: dict[str, pd.DataFrame]) -> dict[str, tuple[float, float]]:

@@ -54,8 +54,9 @@ def stable_svg_ids(svg: bytes) -> bytes:
 
 
 def table_bytes(table: pd.DataFrame) -> bytes:
-    """A tidy table as CSV with a header row (``\\n`` line ends, full float precision)."""
-    return table.to_csv(index=False, lineterminator="\n", float_format="%.10g").encode()
+    """A tidy table as CSV with a header row (``\\n`` line ends). Floats are written as the
+    shortest decimal that reads back to the same number (Python's repr), so values round-trip."""
+    return table.to_csv(index=False, lineterminator="\n").encode()
 
 
 def write_all(payload: dict[Path, bytes]) -> list[Path]:

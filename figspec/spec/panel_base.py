@@ -92,6 +92,7 @@ class SummaryPanel(PanelBase):
     level_axis: Literal["linear", "log"] = "linear"
     confidence: Probability = 0.95
     resamples: Annotated[int, Field(ge=200, le=100_000)] = 2000
+    fit_resamples: Annotated[int, Field(ge=50, le=5000)] = 200
     seed: int = 0
     y_label: str | None = None
 

@@ -95,9 +95,11 @@ class LevelResponsePanel(SummaryPanel):
     @model_validator(mode="after")
     def _equal_windows(self) -> "LevelResponsePanel":
         lengths = (self.response_ms[1] - self.response_ms[0], self.baseline_ms[1] - self.baseline_ms[0])
-        if (self.test != "none" or self.subtract_baseline) and abs(lengths[0] - lengths[1]) > 1e-9:
-            raise ValueError(f"response_ms and baseline_ms must be equally long to compare counts "
-                             f"(got {lengths[0]:g} and {lengths[1]:g} ms)")
+        compared = self.test != "none" or self.subtract_baseline
+        if compared and self.measure == "count" and abs(lengths[0] - lengths[1]) > 1e-9:
+            raise ValueError(f"measure = 'count' compares spike counts, so response_ms and baseline_ms must be "
+                             f"equally long (got {lengths[0]:g} and {lengths[1]:g} ms); 'spikes_per_s' compares "
+                             "rates and allows windows of any lengths")
         return self
 
 
@@ -112,6 +114,17 @@ class LatencyPanel(SummaryPanel):
     threshold_bins: Annotated[int, Field(ge=1, le=20)] = 2
     surprise: Annotated[float, Field(gt=0, le=20)] = 3.0
     fit: Literal["none", "pieron"] = "none"
+    fit_levels: Literal["responsive", "all"] = "responsive"
+    zero_differences: Literal["drop", "keep", "split"] = "drop"
+    alpha: Probability = 0.05
+
+    @model_validator(mode="after")
+    def _baseline_bins(self) -> "LatencyPanel":
+        bins = (self.baseline_ms[1] - self.baseline_ms[0]) / self.bin_ms
+        if self.method == "threshold" and bins < 2 - 1e-9:
+            raise ValueError(f"the threshold method estimates the baseline SD from its bins: baseline_ms must hold "
+                             f"at least two bins of bin_ms (got {bins:.3g} bins of {self.bin_ms:g} ms)")
+        return self
 
     def fitted_model(self) -> str | None:
         return None if self.fit == "none" else self.fit

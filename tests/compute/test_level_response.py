@@ -86,6 +86,13 @@ def test_bootstrap_error_brackets_the_mean(rng):
     assert table["error_kind"].str.contains("bootstrap").all()
 
 
-def test_unequal_windows_are_rejected():
+def test_counts_need_equal_windows_but_rates_may_compare_any(rng):
     with pytest.raises(ValueError, match="equally long"):
-        response_panel(response_ms=(0, 50), baseline_ms=(-30, 0))
+        response_panel(measure="count", response_ms=(0, 50), baseline_ms=(-30, 0))
+    rec, trials, spikes = synthetic(rng)
+    table = response_points(rec, response_panel(response_ms=(0, 50), baseline_ms=(-30, 0), subtract_baseline=True))
+    evoked, base = raw_counts(trials, spikes, (0.0, 0.05)), raw_counts(trials, spikes, (-0.03, 0.0))
+    # reference: numpy means of per-trial rates, count / window length in s, for each window
+    for level, rows in table.groupby("level"):
+        at = [i for i, t in enumerate(trials) if t[1] == level]
+        assert rows["response"].iloc[0] == pytest.approx(np.mean(evoked[at] / 0.05 - base[at] / 0.03))

@@ -6,13 +6,15 @@ import pytest
 from figspec import pipeline
 from figspec.draw.context import styled
 
-from helpers import SPECS, draw_now
+from helpers import SPECS, draw_now, figspec_warnings
 
 
 @pytest.fixture(scope="module")
 def drawn():
     resolved = pipeline.resolve(pipeline.load(SPECS / "level_summary.toml"))
-    tables = pipeline.compute(resolved)
+    with figspec_warnings() as caught:
+        tables = pipeline.compute(resolved)
+    assert any("u2: Naka–Rushton fit poorly constrained" in str(w.message) for w in caught)
     with styled(resolved.style):
         fig = pipeline.draw(resolved, tables)
         draw_now(fig)
@@ -21,7 +23,8 @@ def drawn():
 
 
 def by_gid(ax, prefix):
-    return {line.get_gid().split(":", 1)[1]: line for line in ax.lines if (line.get_gid() or "").startswith(prefix)}
+    return {line.get_gid()[len(prefix):].split(":")[0]: line for line in ax.lines
+            if (line.get_gid() or "").startswith(prefix)}
 
 
 def test_response_panel_points_fits_and_thresholds(drawn):
