@@ -128,9 +128,10 @@ def judge(model: str, names, estimate, ci_low, ci_high, bounds, level, goodness,
     lower, upper = np.asarray(bounds[0], float), np.asarray(bounds[1], float)
     scale = np.where(np.isfinite(upper - lower), upper - lower, np.maximum(np.abs(estimate), 1.0))
     for i, name in enumerate(names):
-        if (np.isfinite(lower[i]) and estimate[i] - lower[i] <= AT_BOUND * scale[i]) or \
-                (np.isfinite(upper[i]) and upper[i] - estimate[i] <= AT_BOUND * scale[i]):
-            reasons.append(f"{name} at a bound of its range ({estimate[i]:.3g})")
+        if np.isfinite(lower[i]) and estimate[i] - lower[i] <= AT_BOUND * scale[i]:
+            reasons.append(f"{name} at the lower bound of its range ({lower[i]:.4g})")
+        elif np.isfinite(upper[i]) and upper[i] - estimate[i] <= AT_BOUND * scale[i]:
+            reasons.append(f"{name} at the upper bound of its range ({upper[i]:.4g})")
     mid = 2 if model == "naka_rushton" else None
     if mid is not None and np.isfinite(ci_low[mid]) and (ci_low[mid] <= lower[mid] + AT_BOUND * scale[mid]
                                                          or ci_high[mid] >= upper[mid] - AT_BOUND * scale[mid]):

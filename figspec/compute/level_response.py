@@ -144,8 +144,9 @@ def legend(panel: LevelResponsePanel, tables: dict[str, pd.DataFrame], about: Ab
             f"({points['response_unit'].iloc[0]}{subtracted}), {points['error_kind'].iloc[0]}, "
             f"n = {count_text(points['n_trials'])} trials per level; units {unit_text(points)}.")
     if panel.test != "none":
-        text += (f" One-sided Wilcoxon signed-rank test of evoked vs baseline counts "
-                 f"({panel.baseline_ms[0]:g}–{panel.baseline_ms[1]:g} ms) per level, trials with equal counts "
+        compared = "rates" if panel.measure == "spikes_per_s" else "counts"
+        text += (f" One-sided Wilcoxon signed-rank test of evoked vs baseline {compared} per trial "
+                 f"({panel.baseline_ms[0]:g}–{panel.baseline_ms[1]:g} ms) per level, trials with equal values "
                  f"{ZERO_TEXT[panel.zero_differences]}, Holm-corrected across levels within each unit; filled "
                  f"markers: p < {panel.alpha:g}.")
     if panel.fit != "none":

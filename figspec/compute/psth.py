@@ -175,6 +175,6 @@ def legend(panel: PsthPanel, table: pd.DataFrame, about: About) -> str:
     if "rate_sem" in table:
         n_units = int(table["n_units"].max())
         text += f"; line and band: mean ± SEM across {n_units} units"
-        units, pooled = ", ".join(panel.unit_names()), f" (summed over {n_units} units)"
+        units, pooled = ", ".join(panel.unit_names()), f" in all, over {n_units} units"
     return (f"- *{about.label}*: {text}; units {units}; n = {count_text(table['n_trials'])} trials per "
             f"level{pooled}; time from stimulus onset, window {panel.window_ms[0]:g} to {panel.window_ms[1]:g} ms.")

@@ -51,7 +51,13 @@ def _repeats(resolved: Resolved, panel, table, stim) -> tuple[list, list[str]]:
     if panel.repeat == "level":
         groups = sorted({float(v) for v in table["level"]},
                         reverse=model.levels.order == "high_at_top" and panel.arrange == "rows")
-        n = stim.groupby("level")["n_trials"].first()
-        return groups, [model.levels.label(g) + (f"\nn = {int(n[g])}" if counts else "") for g in groups]
+        if "n_units" in table:               # a population: the trials of every unit, and how many units
+            n = table.groupby("level")["n_trials"].first()
+            pooled = table.groupby("level")["n_units"].first()
+            text = {g: f"\nn = {int(n[g])} ({int(pooled[g])} units)" for g in groups}
+        else:
+            n = stim.groupby("level")["n_trials"].first()
+            text = {g: f"\nn = {int(n[g])}" for g in groups}
+        return groups, [model.levels.label(g) + (text[g] if counts else "") for g in groups]
     n = stim.groupby("unit")["n_trials"].first()
     return list(panel.units), [g + (f"\nn = {int(n[g])}" if counts else "") for g in panel.units]
