@@ -27,5 +27,5 @@ def require(module: str, feature: str, loc: Loc = ()) -> ModuleType:
         return importlib.import_module(module)
     except ImportError:
         extra = EXTRAS[module]
-        raise DataError(Problem(f"{feature} needs the optional package {module!r}, which is not installed: "
+        raise DataError(Problem(f"{feature} needs the optional package {module.split('.')[0]!r}, which is not installed: "
                                 f"pip install 'figspec[{extra}]'", loc)) from None
