@@ -16,10 +16,6 @@ from figspec.spec.sources import SourceBase, TableSource
 Plan = dict[str, tuple[str, Loc]]   # canonical name -> (column in the file, key path in the spec)
 
 
-def key_names(n: int) -> list[str]:
-    return [f"key{i}" for i in range(n)]
-
-
 def trial_plan(columns, where: dict, loc: Loc, key: list[str] | None) -> Plan:
     """Trial-table columns: the key (when given), level, stimulus and extent times, events, unit,
     and the columns selection conditions test."""
