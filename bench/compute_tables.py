@@ -16,7 +16,7 @@ import time
 import numpy as np
 import pandas as pd
 
-from figspec.data.assemble import TrialCounts, assemble
+from figspec.data.assemble import Layout, assemble
 from figspec.registry import kind_of
 from figspec.spec.models import LevelSpec
 from figspec.spec.panels import LatencyPanel, LevelResponsePanel, PsthPanel, RasterPanel
@@ -33,10 +33,9 @@ def recording(n_spikes: int, trials_per_level: int, seed: int = 3):
     drive = 1 / (1 + 10 ** (1.5 * (40 - level[trial]) / 20))   # saturating with level
     evoked = rng.random(trial.size) < 0.1 + 0.6 * drive
     rel = np.where(evoked, rng.uniform(0.004, 0.06, trial.size), rng.uniform(-0.2, 0.4, trial.size))
-    spikes = pd.DataFrame({"unit": "u1", "trial": trial, "time": onset[trial] + rel})
-    trials = pd.DataFrame({"trial": np.arange(level.size), "level": level, "onset": onset, "offset": onset + 0.05})
-    locs = {k: () for k in ("unit", "trial", "time", "level", "onset", "offset")}
-    return assemble(spikes, trials, time_unit="s", where="bench", locs=locs, counts=TrialCounts(None, ()))
+    spikes = pd.DataFrame({"unit": "u1", "key0": trial, "time": onset[trial] + rel})
+    trials = pd.DataFrame({"key0": np.arange(level.size), "level": level, "onset": onset, "offset": onset + 0.05})
+    return assemble(spikes, trials, Layout(where="bench", locs={}, clock="session"))
 
 
 PANELS = [RasterPanel(name="r", kind="raster", unit="u1"),

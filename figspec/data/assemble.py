@@ -144,23 +144,26 @@ def assemble(spikes: pd.DataFrame, trials: pd.DataFrame | None, layout: Layout) 
     return rec.keep_trials(keep, removed)
 
 
-def check_inside_extent(ticks: np.ndarray, table: pd.DataFrame, trial_of_spike: np.ndarray, layout: Layout) -> None:
+def check_inside_extent(ticks: np.ndarray, table: pd.DataFrame, trial_of_spike: np.ndarray, layout: Layout,
+                        chunk: int = 1 << 20) -> None:
     """Spikes far outside their own trial's recorded extent mean the time unit or the clock is
-    wrong: an error when none is inside, a warning when most are not."""
-    lo = table["extent_lo_ms"].to_numpy(dtype=float)[trial_of_spike]
-    hi = table["extent_hi_ms"].to_numpy(dtype=float)[trial_of_spike]
-    known = np.isfinite(lo) | np.isfinite(hi)
-    if not known.any():
+    wrong: an error when none is inside, a warning when most are not. Counted in chunks, so the
+    check needs no full-size temporary arrays."""
+    lo = table["extent_lo_ms"].to_numpy(dtype=float) * layout.ticks_per_ms
+    hi = table["extent_hi_ms"].to_numpy(dtype=float) * layout.ticks_per_ms
+    if not (np.isfinite(lo).any() or np.isfinite(hi).any()):
         return
-    rel = ticks[known] / layout.ticks_per_ms
-    outside = int(((rel < lo[known]) | (rel >= hi[known])).sum())
+    outside = 0
+    for start in range(0, ticks.size, chunk):
+        t, k = ticks[start:start + chunk], trial_of_spike[start:start + chunk]
+        outside += int(np.count_nonzero((t < lo[k]) | (t >= hi[k])))
     hint = (f"is time_unit = {layout.time_unit!r} right, and are spike and trial times on the same clock "
             f"({layout.clock!r})?")
-    if outside == rel.size:
+    if ticks.size and outside == ticks.size:
         raise DataError(Problem(f"no spike falls inside its trial's recorded extent: {hint}",
                                 layout.locs.get("time", ()), layout.where))
-    if outside > rel.size / 2:
-        warnings.warn(f"{layout.where}: {outside} of {rel.size} spikes fall outside their trial's recorded extent: "
+    if outside > ticks.size / 2:
+        warnings.warn(f"{layout.where}: {outside} of {ticks.size} spikes fall outside their trial's recorded extent: "
                       f"{hint}", FigspecWarning, stacklevel=3)
 
 

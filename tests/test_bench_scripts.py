@@ -1,0 +1,17 @@
+"""The bench/ scripts still run against today's code (tiny sizes; they time nothing here)."""
+
+import runpy
+import sys
+
+import pytest
+
+from helpers import ROOT
+
+
+@pytest.mark.parametrize("script, args", [("compute_tables.py", ["--spikes", "20000", "--trials", "10", "--repeats", "1"]),
+                                          ("assemble_recording.py", ["--spikes", "20000", "--repeats", "1"])])
+def test_bench_script_runs(script, args, monkeypatch, capsys):
+    monkeypatch.setattr(sys, "argv", [script, *args])
+    monkeypatch.syspath_prepend(str(ROOT / "bench"))
+    runpy.run_path(str(ROOT / "bench" / script), run_name="__main__")
+    assert "spikes" in capsys.readouterr().out
