@@ -192,3 +192,44 @@ def test_trial_numbers_that_restart_per_level_are_told_apart(computed):
     trials = out["aligned"]["spikes"]["trial"].astype(str)
     assert trials.str.fullmatch(r"\d+/\d+").all()                       # level/trial-in-level
     assert out["aligned"]["spikes"].groupby("level")["row"].max().tolist() == [PER_LEVEL - 1] * len(LEVELS)
+
+
+def test_aligning_to_another_event_moves_spikes_and_draws_the_stimulus_where_it_falls(tmp_path):
+    trials = pd.DataFrame({"trial": [1, 2], "level": [10, 20], "onset": [1.000, 2.000], "offset": [1.050, 2.050],
+                           "reward": [1.200, 2.230]})
+    spikes = pd.DataFrame({"unit": "u", "trial": [1, 2], "t": [1.210, 2.240]})
+    trials.to_csv(tmp_path / "t.csv", index=False)
+    spikes.to_csv(tmp_path / "s.csv", index=False)
+    spec = tmp_path / "reward.toml"
+    spec.write_text('[stimulus]\nper_trial = true\n[sources.r]\nspikes = "s.csv"\ntrials = "t.csv"\nclock = "session"\n'
+                    'align = "reward"\nspike_columns = { unit = "unit", trial = "trial", time = "t" }\n'
+                    'trial_columns = { trial = "trial", level = "level", onset = "onset", offset = "offset", '
+                    'events = { reward = "reward" } }\n[[panels]]\nname = "spikes"\nkind = "raster"\n'
+                    'window_ms = [-300, 100]\n')
+    tables = pipeline.compute(pipeline.check(spec)).for_export()
+    assert tables["spikes"].sort_values("level")["time_ms"].tolist() == [10.0, 10.0]
+    stim = tables["stimulus"].sort_values("level")
+    assert stim["start_ms"].tolist() == [-200.0, -230.0] and stim["stop_min_ms"].tolist() == [-150.0, -180.0]
+
+
+def test_a_finer_tick_keeps_sub_microsecond_times_apart():
+    from figspec.data.assemble import Layout, assemble
+    from figspec.spec.sources import CsvSource
+
+    spikes = pd.DataFrame({"unit": "u", "key0": "1", "time": ["0.0000010", "0.0000015"]})
+    trials = pd.DataFrame({"key0": ["1"], "level": [1.0]})
+    fine = assemble(spikes, trials, Layout(where="t", locs={}, ticks_per_second=2_000_000))
+    assert fine.ticks.tolist() == [2, 3] and fine.ticks_per_ms == 2000
+    with pytest.raises(ValueError, match="whole ticks"):
+        CsvSource.model_validate({"spikes": "s", "trials": "t", "tick_us": 3})
+
+
+def test_a_tab_separated_file_reads_with_its_delimiter(tmp_path):
+    pd.DataFrame({"unit": ["u", "u"], "trial": [1, 2], "t": [0.01, 0.02]}).to_csv(tmp_path / "s.tsv", sep="\t", index=False)
+    pd.DataFrame({"trial": [1, 2], "level": [10, 20]}).to_csv(tmp_path / "t.tsv", sep="\t", index=False)
+    spec = tmp_path / "tsv.toml"
+    spec.write_text('[stimulus]\nstart_ms = 0\nstop_ms = 50\n[sources.r]\nspikes = "s.tsv"\ntrials = "t.tsv"\n'
+                    'delimiter = "\\t"\nspike_columns = { unit = "unit", trial = "trial", time = "t" }\n'
+                    '[[panels]]\nname = "spikes"\nkind = "raster"\n')
+    tables = pipeline.compute(pipeline.check(spec)).for_export()
+    assert tables["spikes"]["time_ms"].tolist() == [10.0, 20.0]

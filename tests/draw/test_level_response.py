@@ -58,3 +58,26 @@ def test_population_panel_rows_share_limits_and_show_sem(drawn):
     population = [ax for ax in fig.axes if any(p.get_gid() == "rate_sem" for p in ax.patches)]
     assert len(population) == 3
     assert len({ax.get_ylim() for ax in population}) == 1
+
+
+def test_latency_marks_unresponsive_levels_open_and_offsets_units(drawn):
+    _, tables, axes = drawn
+    ax = axes["Latency vs sound level"]
+    points = tables.panels["latency"]["points"]
+    filled, open_ = by_gid(ax, "category:"), by_gid(ax, "points_ns:")
+    for unit, rows in points.groupby("unit"):
+        assert len(filled[unit].get_xdata()) == rows["responsive"].sum()
+        assert len(open_[unit].get_xdata()) == (~rows["responsive"]).sum()
+    at_80 = {u: line.get_xdata()[-1] for u, line in filled.items()}        # every unit responds at 80 dB
+    assert len(set(np.round(list(at_80.values()), 6))) == 3 and max(at_80.values()) - min(at_80.values()) < 1.0
+
+
+def test_y_labels_say_what_is_plotted():
+    from figspec.draw.level_response import response_label
+    from figspec.spec.panels import LevelResponsePanel
+
+    panel = LevelResponsePanel.model_validate({"name": "r", "kind": "level_response", "response_ms": [0, 60],
+                                               "baseline_ms": [-60, 0]})
+    assert response_label(panel, "spikes/s") == "Rate in 0–60 ms (spikes/s)"
+    assert response_label(panel.model_copy(update={"subtract_baseline": True}), "spikes/s") == \
+        "Rate above baseline (spikes/s)"
