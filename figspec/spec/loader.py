@@ -49,7 +49,7 @@ class LoadedSpec:
 def read_toml(path: Path) -> tuple[str, dict[str, Any]]:
     """Read and parse a TOML file; a missing file or bad syntax is a :class:`SpecError`."""
     try:
-        text = path.read_text(encoding="utf-8")
+        text = path.read_text(encoding="utf-8-sig")        # an editor's byte-order mark is not TOML
     except FileNotFoundError:
         raise SpecError(Problem("file not found", file=str(path))) from None
     except (OSError, UnicodeDecodeError) as err:

@@ -118,9 +118,28 @@ def source_name(spec: FigureFile, panel: PanelBase) -> str | list[str] | None:
     return next(iter(spec.sources)) if len(spec.sources) == 1 else None
 
 
+RESERVED_NAMES = ("stimulus", "statistics", "legend", "manifest")   # figspec's own files in <stem>_data/
+TABLE_PARTS = ("points", "fit", "params")                          # <panel>_<part>.csv of summary panels
+
+
+def name_problems(spec: FigureFile) -> list[Problem]:
+    """Panel names that would write the same source-data file as figspec's own or another panel's."""
+    problems = []
+    names = [p.name for p in spec.panels]
+    for i, name in enumerate(names):
+        if name in RESERVED_NAMES:
+            problems.append(Problem(f"{name!r} names one of figspec's own files ({', '.join(RESERVED_NAMES)}): "
+                                    "choose another panel name", ("panels", i, "name"), repr(name)))
+        for other in names:
+            if any(name == f"{other}_{part}" for part in TABLE_PARTS):
+                problems.append(Problem(f"the source data of panel {other!r} include {name}.csv: choose another "
+                                        "panel name", ("panels", i, "name"), repr(name)))
+    return problems
+
+
 def cross_check(spec: FigureFile) -> list[Problem]:
     """Checks between tables of a valid spec (second tier), each with its key path."""
-    problems: list[Problem] = []
+    problems: list[Problem] = name_problems(spec)
     seen: dict[str, int] = {}
     for i, panel in enumerate(spec.panels):
         if panel.name in seen:

@@ -59,3 +59,28 @@ def test_missing_required_table(tmp_path):
 def test_missing_file(tmp_path):
     [problem] = problems_of(tmp_path / "absent.toml")
     assert problem.message == "file not found"
+
+
+def test_a_byte_order_mark_is_not_a_toml_error(tmp_path):
+    from figspec.spec.loader import load_spec
+
+    from helpers import MINIMAL_SPEC, write_spec
+
+    path = write_spec(tmp_path, MINIMAL_SPEC)
+    path.write_bytes(b"\xef\xbb\xbf" + path.read_bytes())
+    assert load_spec(path).model.figure.title == "t"
+
+
+@pytest.mark.parametrize("name, fragment", [("statistics", "names one of figspec's own files"),
+                                            ("curve_points", "the source data of panel 'curve' include curve_points.csv")])
+def test_panel_names_that_would_overwrite_another_file_are_refused(tmp_path, name, fragment):
+    from figspec.errors import SpecError
+    from figspec.spec.loader import load_spec
+
+    from helpers import MINIMAL_SPEC, write_spec
+
+    text = MINIMAL_SPEC.replace('name = "spikes"', f'name = "{name}"') + (
+        '\n[[panels]]\nname = "curve"\nkind = "level_response"\nunit = "u2"\n')
+    with pytest.raises(SpecError) as info:
+        load_spec(write_spec(tmp_path, text))
+    assert any(fragment in p.message and p.loc == ("panels", 0, "name") for p in info.value.problems)
