@@ -136,6 +136,7 @@ def lab_style_folders(folder: Path | None) -> list[Path]:
     spec, then ``styles/`` one folder up (a project with ``specs/`` and ``styles/`` side by side)."""
     if folder is None:
         return []
+    folder = folder.resolve()                 # "..".parent is ".": resolve before going up
     return [folder / "styles", folder.parent / "styles"]
 
 

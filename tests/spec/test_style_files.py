@@ -1,3 +1,5 @@
+from pathlib import Path
+
 import pytest
 
 from figspec import pipeline
@@ -70,3 +72,12 @@ def test_a_missing_font_warns(tmp_path):
     resolved = pipeline.resolve(pipeline.load(write_spec(tmp_path, text)))
     with styled(resolved.style), pytest.warns(FigspecWarning, match="fonts-liberation2"):
         pipeline.draw(resolved, pipeline.compute(resolved))
+
+
+def test_the_house_style_one_folder_up_is_found_from_a_relative_spec_path(monkeypatch):
+    from figspec.spec.style import style_path
+
+    from helpers import SPECS
+
+    monkeypatch.chdir(SPECS / "data")
+    assert style_path("house", Path("..")).resolve() == (SPECS.parent / "styles" / "house.toml").resolve()
