@@ -41,17 +41,19 @@ def first_spike_times(rec: Recording, unit: str, panel: LatencyPanel) -> dict[fl
     return out
 
 
-def first_spike_latency(rec: Recording, unit: str, panel: LatencyPanel) -> pd.DataFrame:
+def first_spike_latency(rec: Recording, unit: str, panel: LatencyPanel,
+                        times: dict[float, np.ndarray] | None = None) -> pd.DataFrame:
     """Median first-spike time per level in ``[response start, response stop)`` with a
     percentile bootstrap CI across trials. Trials with no spike there are counted in
     ``n_no_spike`` and left out of the median: they are not zero-latency trials."""
     rows = []
-    for lv, times in first_spike_times(rec, unit, panel).items():
-        valid = times[~np.isnan(times)]
+    for lv, level_times in (times or first_spike_times(rec, unit, panel)).items():
+        valid = level_times[~np.isnan(level_times)]
         median = float(np.median(valid)) if valid.size else np.nan
         low, high = bootstrap_ci(valid, np.median, panel.confidence, panel.resamples, generator(panel.seed, unit, lv))
         note = "" if valid.size >= 2 else "fewer than two trials with a spike"
-        rows.append((unit, lv, times.size, int(np.isnan(times).sum()), median, low, high, "first_spike", note))
+        rows.append((unit, lv, level_times.size, int(np.isnan(level_times).sum()), median, low, high, "first_spike",
+                     note))
     return pd.DataFrame(rows, columns=list(COLUMNS))
 
 
@@ -117,7 +119,7 @@ def surprise_latency(rec: Recording, unit: str, panel: LatencyPanel) -> pd.DataF
 METHODS = {"first_spike": first_spike_latency, "threshold": threshold_latency, "surprise": surprise_latency}
 
 
-def latency_points(rec: Recording, panel: LatencyPanel) -> pd.DataFrame:
+def latency_points(rec: Recording, panel: LatencyPanel, first_times: dict | None = None) -> pd.DataFrame:
     """Latency per unit and level by the panel's method, with the per-level response test.
 
     Columns
@@ -137,7 +139,10 @@ def latency_points(rec: Recording, panel: LatencyPanel) -> pd.DataFrame:
     """
     frames = []
     for unit in panel.unit_names():
-        frame = METHODS[panel.method](rec, unit, panel)
+        if first_times is not None:          # first-spike times already taken (see compute)
+            frame = first_spike_latency(rec, unit, panel, first_times[unit])
+        else:
+            frame = METHODS[panel.method](rec, unit, panel)
         frame["p_holm"] = _response_test(rec, unit, panel)
         frames.append(frame)
     out = pd.concat(frames, ignore_index=True)
@@ -161,7 +166,9 @@ def compute(rec: Recording, panel: LatencyPanel, levels: LevelSpec) -> dict[str,
     """``points`` (see :func:`latency_points`), ``fit`` (unit, level, latency_ms on a fine grid,
     status) and ``params`` (Pieron status with reasons, parameters with bootstrap intervals,
     goodness of fit). Levels not in the fit are named in the points' ``note``."""
-    points = latency_points(rec, panel)
+    first_times = ({unit: first_spike_times(rec, unit, panel) for unit in panel.unit_names()}
+                   if panel.method == "first_spike" else None)
+    points = latency_points(rec, panel, first_times)
     params: list[list] = []
     curve = pd.DataFrame(columns=["unit", "level", "latency_ms", "status"])
     if panel.fit != "none":
@@ -175,7 +182,7 @@ def compute(rec: Recording, panel: LatencyPanel, levels: LevelSpec) -> dict[str,
         by_unit = {}
         for unit, rows in points.groupby("unit", sort=False):
             rows = rows[rows["in_fit"]]
-            samples = first_spike_times(rec, unit, panel) if panel.method == "first_spike" else None
+            samples = first_times[unit] if first_times is not None else None
             values = [samples[float(lv)][~np.isnan(samples[float(lv)])] for lv in rows["level"]] if samples else None
             by_unit[unit] = UnitPoints(rows["level"].to_numpy(dtype=float), values,
                                        rows["latency_ms"].to_numpy(dtype=float), np.median if samples else None)

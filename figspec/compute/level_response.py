@@ -44,7 +44,7 @@ def unit_values(rec: Recording, panel: LevelResponsePanel, unit: str):
     return levels, values, pairs
 
 
-def response_points(rec: Recording, panel: LevelResponsePanel) -> pd.DataFrame:
+def response_points(rec: Recording, panel: LevelResponsePanel, values: dict | None = None) -> pd.DataFrame:
     """Response per unit and level in the response window.
 
     The per-trial response is the count in ``response_ms`` (or count / window length in s for
@@ -64,12 +64,15 @@ def response_points(rec: Recording, panel: LevelResponsePanel) -> pd.DataFrame:
         says), empty when all differences are zero.
     p_holm : p adjusted by Holm across the levels of the unit.
     significant : p_holm < alpha.
+
+    ``values`` (unit -> :func:`unit_values`) spares selecting the trials again.
     """
+    values = values or {unit: unit_values(rec, panel, unit) for unit in panel.unit_names()}
     rows = []
     for unit in panel.unit_names():
-        levels, values, pairs = unit_values(rec, panel, unit)
+        levels, per_trial, pairs = values[unit]
         unit_rows = []
-        for lv, v, (e, b) in zip(levels, values, pairs):
+        for lv, v, (e, b) in zip(levels, per_trial, pairs):
             mean = float(v.mean())
             if panel.error == "sem":
                 s = sem(v)
@@ -102,18 +105,18 @@ def compute(rec: Recording, panel: LevelResponsePanel, levels: LevelSpec) -> dic
     status; for fits that are drawn) and ``params`` (long table: fit status with its reasons,
     weighting, parameters with bootstrap intervals, goodness of fit, derived levels, and the
     threshold by test: the lowest level whose Holm-corrected test is significant)."""
-    points = response_points(rec, panel)
+    values = {unit: unit_values(rec, panel, unit) for unit in panel.unit_names()}
+    points = response_points(rec, panel, values)
     value_unit = str(points["response_unit"].iloc[0])
     params: list[list] = []
     curve = pd.DataFrame(columns=["unit", "level", "response", "status"])
     if panel.fit != "none":
         window_s = (panel.response_ms[1] - panel.response_ms[0]) * 1e-3
         by_unit = {}
-        for unit in panel.unit_names():
-            lv, values, _ = unit_values(rec, panel, unit)
-            n = np.array([v.size for v in values], dtype=float)
+        for unit, (lv, per_trial, _) in values.items():
+            n = np.array([v.size for v in per_trial], dtype=float)
             floor = 1.0 / n / (window_s if panel.measure == "spikes_per_s" else 1.0)
-            by_unit[unit] = UnitPoints(lv, values, np.array([v.mean() for v in values]), np.mean, floor)
+            by_unit[unit] = UnitPoints(lv, per_trial, np.array([v.mean() for v in per_trial]), np.mean, floor)
         curve, params = fit_tables(by_unit, "response", panel.fit, levels, panel, value_unit, WEIGHTING)
     if panel.test != "none":
         for unit, rows in points.groupby("unit", sort=False):

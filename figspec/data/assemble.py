@@ -66,12 +66,7 @@ class Layout:
 def to_ticks(values: pd.Series, layout: Layout, what: str, name: str) -> np.ndarray:
     """Times in the layout's time unit as int64 ticks; every value must be a finite number."""
     loc = layout.locs.get(name, ())
-    numbers = pd.to_numeric(values, errors="coerce").to_numpy(dtype=float)
-    bad = ~np.isfinite(numbers)
-    if bad.any():
-        first = values[bad].iloc[0]
-        raise DataError(Problem(f"{what} must be finite numbers in every row of {layout.where}; "
-                                f"{int(bad.sum())} rows are not", loc, "an empty field" if pd.isna(first) else shown(first)))
+    numbers = _numbers(values, what, loc, layout.where)
     scaled = numbers * (layout.ticks_per_second * SECONDS_PER[layout.time_unit])
     if np.any(np.abs(scaled) >= LARGEST_TICK):
         raise DataError(Problem(f"{what} are too large to hold in {1e6 / layout.ticks_per_second:g}-µs ticks "
