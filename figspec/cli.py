@@ -14,6 +14,7 @@ from typing import Sequence
 
 from figspec import __version__
 from figspec.errors import FigspecWarning, Problem, UserError
+from figspec.output.names import check_stems
 from figspec.spec.models import ALL_FORMATS
 
 EXIT_OK, EXIT_INTERNAL, EXIT_USER, EXIT_DIFFERS = 0, 1, 2, 3
@@ -30,6 +31,7 @@ def _spec_files(items: Sequence[str]) -> list[Path]:
             files += found
         else:
             files.append(path)
+    check_stems(files)
     return files
 
 
@@ -73,9 +75,11 @@ def _parser() -> argparse.ArgumentParser:
     which.add_argument("--rev", metavar="REVISION", help="the old version: the same file at this git revision")
     dif.add_argument("-o", "--outdir", default="figure_diff", help="where the images and summary go")
     for sub_parser in (render, check):
-        sub_parser.add_argument("--journal", nargs="?", const="", metavar="PROFILE",
-                                help="check the rendered figure against a journal profile (default: the "
-                                     "spec's figure.journal), e.g. nature, jneurosci, cell")
+        sub_parser.add_argument("--journal", action="store_true",
+                                help="check the figure against the journal profile in the spec's figure.journal")
+        sub_parser.add_argument("--profile", metavar="NAME",
+                                help="check the figure against this journal profile instead (implies --journal), "
+                                     "e.g. nature, jneurosci, cell, or a path to a profile .toml")
         sub_parser.add_argument("--strict", action="store_true", help="journal check findings exit 2")
     return parser
 
@@ -102,11 +106,15 @@ def run(argv: Sequence[str] | None = None) -> int:
                 resolved = pipeline.check(path, args.style)
                 for note in pipeline.notes(resolved):
                     print(f"note: {note}", file=sys.stderr)
-                profile = args.journal or None
+                profile = args.profile
+                if args.command == "check" and not (args.journal or profile):
+                    from figspec.steps.journal import profile as named_profile
+
+                    named_profile(resolved, None)             # a journal named in the spec must exist
                 if args.command == "render":
                     result = pipeline.render(path, args.outdir, formats, resolved=resolved, profile=profile)
                     print(f"{path}: wrote {len(result.files)} files to {args.outdir}")
-                elif args.journal is not None:
+                elif args.journal or profile:
                     result = pipeline.journal_check(resolved, profile)
                 else:
                     result = None

@@ -8,7 +8,8 @@ is an internal error (exit 1).
 from __future__ import annotations
 
 from dataclasses import dataclass, replace
-from typing import Iterable
+import json
+from typing import Any, Iterable
 
 Loc = tuple[str | int, ...]
 
@@ -22,6 +23,22 @@ def format_key_path(loc: Loc) -> str:
         else:
             out += ("." if out else "") + str(part)
     return out
+
+
+def toml_text(value: Any) -> str:
+    """``value`` written as it would be in TOML (strings in double quotes, true/false, arrays
+    in brackets, tables in braces), so messages show the user's own notation."""
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, str):
+        return json.dumps(value, ensure_ascii=False)
+    if isinstance(value, float):
+        return {float("inf"): "inf", float("-inf"): "-inf"}.get(value, "nan" if value != value else f"{value:g}")
+    if isinstance(value, (list, tuple)):
+        return "[" + ", ".join(toml_text(v) for v in value) + "]"
+    if isinstance(value, dict):
+        return "{ " + ", ".join(f"{k} = {toml_text(v)}" for k, v in value.items()) + " }"
+    return str(value)
 
 
 @dataclass(frozen=True)

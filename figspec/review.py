@@ -16,6 +16,7 @@ from typing import Sequence
 import tomli
 
 from figspec import pipeline
+from figspec.output.names import output_stem
 from figspec.errors import Problem, UserError
 from figspec.output.compare import ImageResult, rms_difference, side_by_side, table_changes
 from figspec.output.files import write_all
@@ -35,8 +36,8 @@ def snapshot(specs: Sequence[Path], folder: Path) -> list[Path]:
     payload = {}
     for spec in specs:
         files, _ = pipeline.render_in_memory(pipeline.check(spec), FORMATS)
-        payload[folder / f"{Path(spec).stem}.png"] = files["png"]
-        hashes[Path(spec).stem] = {fmt: sha256(data) for fmt, data in files.items()}
+        payload[folder / f"{output_stem(spec)}.png"] = files["png"]
+        hashes[output_stem(spec)] = {fmt: sha256(data) for fmt, data in files.items()}
     payload[hashes_path] = (json.dumps(hashes, indent=2, sort_keys=True) + "\n").encode()
     return write_all(payload)
 
@@ -60,7 +61,7 @@ def compare(specs: Sequence[Path], folder: Path, tolerance: float, results: Path
     stored = json.loads((folder / FINGERPRINTS).read_text()) if (folder / FINGERPRINTS).is_file() else {}
     out = []
     for spec in specs:
-        stem = Path(spec).stem
+        stem = output_stem(spec)
         files, _ = pipeline.render_in_memory(pipeline.check(spec), FORMATS)
         actual = results / f"{stem}.new.png"
         write_all({actual: files["png"]})
@@ -100,14 +101,14 @@ def diff(new: Path, old: Path | None, revision: str | None, outdir: Path) -> lis
         old_files, old_tables = pipeline.render_in_memory(pipeline.check(old))
     else:
         old_text = _spec_at_revision(new, revision)
-        hidden = new.parent / f".{new.stem}.at-{revision.replace('/', '_')}.toml"  # beside it: same relative paths
+        hidden = new.parent / f".{output_stem(new)}.at-{revision.replace('/', '_')}.toml"  # beside it: same relative paths
         hidden.write_text(old_text)
         try:
             old_files, old_tables = pipeline.render_in_memory(pipeline.check(hidden))
         finally:
             hidden.unlink(missing_ok=True)
     new_files, new_tables = pipeline.render_in_memory(pipeline.check(new))
-    folder = Path(outdir) / f"{new.stem}_diff"
+    folder = Path(outdir) / f"{output_stem(new)}_diff"
     pair, difference = side_by_side(old_files["png"], new_files["png"])
     write_all({folder / "old.png": old_files["png"], folder / "new.png": new_files["png"],
                folder / "side_by_side.png": pair, folder / "difference.png": difference})

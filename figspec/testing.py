@@ -16,6 +16,7 @@ import unittest
 from pathlib import Path
 
 from figspec import pipeline
+from figspec.output.names import output_stem
 from figspec.output.compare import rms_difference
 from figspec.output.files import write_all
 
@@ -30,13 +31,13 @@ def assert_figure_matches(spec: str | Path, baseline_dir: str | Path, tolerance:
     spec = Path(spec)
     files, _ = pipeline.render_in_memory(pipeline.check(spec))
     results, baselines = Path(results_dir), Path(baseline_dir)
-    actual, expected = results / f"{spec.stem}.new.png", baselines / f"{spec.stem}.png"
+    actual, expected = results / f"{output_stem(spec)}.new.png", baselines / f"{output_stem(spec)}.png"
     write_all({actual: files["png"]})
     if update if update is not None else bool(os.environ.get("FIGSPEC_UPDATE_BASELINES")):
         write_all({expected: files["png"]})
         raise unittest.SkipTest(f"baseline {expected} written: look at it before committing")
     if not expected.is_file():
         raise AssertionError(f"no baseline {expected}: run with FIGSPEC_UPDATE_BASELINES=1 to create it")
-    shutil.copyfile(expected, results / f"{spec.stem}.baseline.png")
-    result = rms_difference(expected, actual, tolerance, results / f"{spec.stem}.difference.png")
+    shutil.copyfile(expected, results / f"{output_stem(spec)}.baseline.png")
+    result = rms_difference(expected, actual, tolerance, results / f"{output_stem(spec)}.difference.png")
     assert result.passed, f"{spec}: {result.message} (see {results})"

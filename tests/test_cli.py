@@ -119,7 +119,7 @@ def test_fit_without_a_level_scale_exits_2(tmp_path):
 
 def test_negative_bin_exits_2(tmp_path):
     result = figspec("check", write_spec(tmp_path, MINIMAL_SPEC.replace("bin_ms = 10", "bin_ms = -5")))
-    assert result.returncode == 2 and "panels[1].bin_ms: Input should be greater than 0" in result.stderr
+    assert result.returncode == 2 and "panels[1].bin_ms: should be greater than 0" in result.stderr
 
 
 def test_check_mentions_unlocked_rate_rows(tmp_path):

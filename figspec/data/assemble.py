@@ -129,6 +129,7 @@ def assemble(spikes: pd.DataFrame, trials: pd.DataFrame | None, layout: Layout) 
     align = times["align"][pair_trial][pair] if layout.clock != "aligned" else 0
     ticks = spike_t - align
     check_inside_extent(ticks, table, pair_trial[pair], layout)
+    check_durations(table, layout)
     order = sort_order(pair, ticks)
     offsets = np.zeros(pair_unit.size + 1, dtype=np.int64)
     np.cumsum(np.bincount(pair, minlength=pair_unit.size), out=offsets[1:])
@@ -159,6 +160,26 @@ def check_inside_extent(ticks: np.ndarray, table: pd.DataFrame, trial_of_spike: 
                                 layout.locs.get("time", ()), layout.where))
     if outside > ticks.size / 2:
         warnings.warn(f"{layout.where}: {outside} of {ticks.size} spikes fall outside their trial's recorded extent: "
+                      f"{hint}", FigspecWarning, stacklevel=3)
+
+
+LONGEST_STIMULUS_MS = 10_000     # common practice: single-unit stimuli last ms to seconds, rarely longer
+SHORTEST_TRIAL_MS = 1.0
+
+
+def check_durations(table: pd.DataFrame, layout: Layout) -> None:
+    """Stimuli that last minutes, or trials recorded for less than a millisecond, mean the
+    time unit is likely wrong (ms read as s, or s as ms): a warning, since a lab may mean it."""
+    hint = f"is time_unit = {layout.time_unit!r} right?"
+    stimulus = (table["stim_stop_ms"] - table["stim_start_ms"]).to_numpy(dtype=float)
+    stimulus = stimulus[np.isfinite(stimulus)]
+    if stimulus.size and np.median(stimulus) > LONGEST_STIMULUS_MS:
+        warnings.warn(f"{layout.where}: the stimulus lasts {np.median(stimulus) / 1000:g} s in the median trial: "
+                      f"{hint}", FigspecWarning, stacklevel=3)
+    extent = (table["extent_hi_ms"] - table["extent_lo_ms"]).to_numpy(dtype=float)
+    extent = extent[np.isfinite(extent)]
+    if extent.size and np.median(extent) < SHORTEST_TRIAL_MS:
+        warnings.warn(f"{layout.where}: each trial was recorded for {np.median(extent):g} ms in the median trial: "
                       f"{hint}", FigspecWarning, stacklevel=3)
 
 

@@ -13,9 +13,10 @@ from typing import TYPE_CHECKING, Any, Callable
 import numpy as np
 import pandas as pd
 
-from figspec.draw.context import DrawContext, Labels
+from figspec.draw.context import DrawContext, Labels, typeset_math
 from figspec.draw.scales import Limits, apply_scales, apply_ticks, shared_scales
 from figspec.draw.shading import level_appearance, mark_stimulus, stimulus_key
+from figspec.spec.fields import math_pieces
 from figspec.spec.models import FigureFile
 
 if TYPE_CHECKING:
@@ -79,6 +80,7 @@ def compose(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> "Figu
                                                  or (p.stimulus["start_max_ms"] > p.stimulus["start_ms"]).any())
                      for p in plans)
         stimulus_key(fig, appearance, spec.stimulus.label, spec.levels.label, ranges)
+    typeset_math(fig, math_pieces(spec))
     return fig
 
 

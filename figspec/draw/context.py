@@ -49,7 +49,27 @@ def styled(style: Style) -> Iterator[None]:
     with mpl.rc_context():
         mpl.rcdefaults()
         mpl.rcParams.update(style.rc())
+        mpl.rcParams["text.parse_math"] = False      # text is literal: "$5 and $6" stays as written
         yield
+
+
+def typeset_math(fig, pieces: list[str]) -> None:
+    """Typeset the texts of ``fig`` that hold a piece the spec marked as mathematics
+    (``{ math = "..." }``); any other '$' in such a text is escaped, so it stays literal."""
+    import re
+
+    from matplotlib.text import Text
+
+    if not pieces:
+        return
+    pattern = re.compile("(" + "|".join(map(re.escape, sorted(pieces, key=len, reverse=True))) + ")")
+    for text in fig.findobj(Text):
+        content = text.get_text()
+        parts = pattern.split(content)
+        if len(parts) == 1:
+            continue
+        text.set_text("".join(part if i % 2 else part.replace("$", r"\$") for i, part in enumerate(parts)))
+        text.set_parse_math(True)
 
 
 @dataclass(frozen=True)

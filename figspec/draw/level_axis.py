@@ -16,7 +16,11 @@ MARGIN = 0.05          # fraction of the level span left free at each end (matpl
 
 def set_level_scale(ax: "Axes", panel) -> None:
     if panel.level_axis == "log":
+        from matplotlib.ticker import FuncFormatter, NullFormatter
+
         ax.set_xscale("log")
+        ax.xaxis.set_major_formatter(FuncFormatter(lambda value, _: f"{value:g}"))   # 10, 100: not 10¹, 10²
+        ax.xaxis.set_minor_formatter(NullFormatter())
 
 
 def level_limits(levels: np.ndarray, axis: str) -> tuple[float, float]:

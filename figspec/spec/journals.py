@@ -7,7 +7,7 @@ from typing import Annotated
 
 from pydantic import Field
 
-from figspec.errors import Problem, SpecError
+from figspec.errors import Problem, SpecError, toml_text
 from figspec.spec.style import BUILTIN_STYLES, lab_style_folders
 from figspec.spec.fields import Frozen
 
@@ -39,7 +39,7 @@ def profile_path(name: str, folder: Path | None = None) -> Path:
             return place / f"{name}.toml"
     known = sorted({p.stem for place in places if place.is_dir() for p in place.glob("*.toml")})
     raise SpecError(Problem(f"no journal profile named {name!r} (known: {', '.join(known)})",
-                            ("figure", "journal"), repr(name)))
+                            ("figure", "journal"), toml_text(name)))
 
 
 def load_profile(name: str, folder: Path | None = None) -> Profile:

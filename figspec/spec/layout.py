@@ -10,7 +10,7 @@ from typing import Annotated, Literal
 
 from pydantic import Field, model_validator
 
-from figspec.errors import Problem
+from figspec.errors import Problem, toml_text
 from figspec.spec.fields import Frozen
 
 Count = Annotated[int, Field(ge=1, le=50)]
@@ -78,7 +78,7 @@ def grid_problems(layout: LayoutSpec | None, panels: list, shared: list[SharedGr
         for j, name in enumerate(group.panels):
             if name not in names:
                 problems.append(Problem(f"no panel named {name!r}; panels are {', '.join(names)}",
-                                        ("shared", g, "panels", j), repr(name)))
+                                        ("shared", g, "panels", j), toml_text(name)))
     placed = [p.cell is not None for p in panels]
     if layout is None:
         for i, p in enumerate(panels):

@@ -14,7 +14,7 @@ from typing import Any, TypeVar
 import tomli
 from pydantic import BaseModel, ValidationError
 
-from figspec.errors import Loc, Problem, SpecError
+from figspec.errors import Loc, Problem, SpecError, toml_text
 from figspec.spec.keylines import index_key_lines, line_for
 from figspec.spec.models import FigureFile, cross_check
 
@@ -201,8 +201,25 @@ def walk_loc(root: type[BaseModel], loc: Loc) -> tuple[Loc, type[BaseModel] | No
 
 
 def _brief(value: Any) -> str:
-    text = repr(value)
+    if isinstance(value, (list, tuple)) and len(value) > 6:
+        return f"an array of {len(value)} items"
+    if isinstance(value, dict) and len(value) > 3:
+        return f"a table of {len(value)} keys"
+    text = toml_text(value)
     return text if len(text) <= 60 else text[:57] + "..."
+
+
+# pydantic speaks of Python and JSON; the spec is TOML
+_WORDS = (("a valid dictionary", "a table"), ("an object", "a table"), ("a valid list", "an array"),
+          ("a valid tuple", "an array"), ("a valid array", "an array"), ("Input should be", "should be"),
+          ("List should have", "should have"), ("Tuple should have", "should have"),
+          (" after validation", ""), ("a valid string", "a string (in quotes)"))
+
+
+def plain_message(message: str) -> str:
+    for old, new in _WORDS:
+        message = message.replace(old, new)
+    return message
 
 
 def problem_from_pydantic(root: type[BaseModel], error: dict[str, Any]) -> Problem:
@@ -220,7 +237,7 @@ def problem_from_pydantic(root: type[BaseModel], error: dict[str, Any]) -> Probl
         got = error.get("ctx", {}).get("tag", "")
         close = difflib.get_close_matches(str(got), tags, n=1, cutoff=0.5)
         hint = f"; did you mean {close[0]!r}?" if close else ""
-        return Problem(f"{key} must be one of {', '.join(map(repr, tags))}{hint}", path + (key,), repr(got))
+        return Problem(f"{key} must be one of {', '.join(map(repr, tags))}{hint}", path + (key,), toml_text(got))
     if kind == "union_tag_not_found":
         key, tags = _union_tags(tp)
         return Problem(f"missing key {key!r} (one of {', '.join(map(repr, tags))})", path)
@@ -229,5 +246,9 @@ def problem_from_pydantic(root: type[BaseModel], error: dict[str, Any]) -> Probl
     message = error["msg"]
     for prefix in ("Value error, ", "Assertion failed, "):
         message = message.removeprefix(prefix)
+    message = plain_message(message)
+    if kind == "too_long" and isinstance(error.get("input"), (list, tuple)):
+        limit = error.get("ctx", {}).get("max_length")
+        return Problem(f"at most {limit} items", path, str(len(error["input"])))
     got = None if kind.startswith("value_error") or isinstance(error.get("input"), dict) else _brief(error.get("input"))
     return Problem(message, path, got)

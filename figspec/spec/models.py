@@ -12,9 +12,10 @@ from typing import Annotated, Any, Literal
 
 from pydantic import Field, model_validator
 
-from figspec.errors import Problem
+from figspec.errors import Problem, toml_text
 from figspec.spec.layout import LayoutSpec, SharedGroup, grid_problems
-from figspec.spec.fields import Fraction, Frozen, Millimetres, Name
+from figspec.spec.fields import (MAX_PANELS, ColourMap, Fraction, Frozen, Millimetres, Name, Text,
+                                  TimeMs)
 from figspec.spec.panel_base import PanelBase
 from figspec.spec.panels import Panel
 from figspec.spec.sources import Source
@@ -26,7 +27,7 @@ ALL_FORMATS: tuple[Format, ...] = ("svg", "pdf", "png")
 class FigureSpec(Frozen):
     """``[figure]``: the page the panels are laid out on."""
 
-    title: str = ""
+    title: Text = ""
     width_mm: Millimetres | None = None
     height_mm: Millimetres = 170.0
     formats: list[Format] = Field(default_factory=lambda: list(ALL_FORMATS), min_length=1)
@@ -38,8 +39,8 @@ class FigureSpec(Frozen):
 class LevelSpec(Frozen):
     """``[levels]``: what the stimulus level is and how rows are ordered."""
 
-    quantity: str = "Level"
-    unit: str = ""
+    quantity: Text = "Level"
+    unit: Text = ""
     order: Literal["high_at_top", "low_at_top"] = "high_at_top"
     scale: Literal["pressure_db", "power_db", "linear"] | None = None
 
@@ -67,14 +68,14 @@ class StimulusSpec(Frozen):
     """
 
     per_trial: bool = False
-    start_ms: float | None = None
-    stop_ms: float | None = None
-    label: str = "Stimulus"
+    start_ms: TimeMs | None = None
+    stop_ms: TimeMs | None = None
+    label: Text = "Stimulus"
     mark: Literal["shade", "bar"] = "shade"
     encoding: Literal["opacity", "colormap", "wavelength"] = "opacity"
     opacity: tuple[Fraction, Fraction] = (0.08, 0.4)
     opacity_scale: Literal["linear", "log"] = "linear"
-    colormap: str | None = None
+    colormap: ColourMap | None = None
     wavelength_nm: Annotated[float, Field(ge=380, le=780)] | None = None
     key: bool = True
 
@@ -105,7 +106,7 @@ class FigureFile(Frozen):
     stimulus: StimulusSpec
     layout: LayoutSpec | None = None
     sources: dict[Name, Source] = Field(min_length=1)
-    panels: list[Panel] = Field(min_length=1)
+    panels: list[Panel] = Field(min_length=1, max_length=MAX_PANELS)
     shared: list[SharedGroup] = Field(default_factory=list)
     style: dict[str, Any] | None = None
 
@@ -129,11 +130,11 @@ def name_problems(spec: FigureFile) -> list[Problem]:
     for i, name in enumerate(names):
         if name in RESERVED_NAMES:
             problems.append(Problem(f"{name!r} names one of figspec's own files ({', '.join(RESERVED_NAMES)}): "
-                                    "choose another panel name", ("panels", i, "name"), repr(name)))
+                                    "choose another panel name", ("panels", i, "name"), toml_text(name)))
         for other in names:
             if any(name == f"{other}_{part}" for part in TABLE_PARTS):
                 problems.append(Problem(f"the source data of panel {other!r} include {name}.csv: choose another "
-                                        "panel name", ("panels", i, "name"), repr(name)))
+                                        "panel name", ("panels", i, "name"), toml_text(name)))
     return problems
 
 
@@ -144,12 +145,12 @@ def cross_check(spec: FigureFile) -> list[Problem]:
     for i, panel in enumerate(spec.panels):
         if panel.name in seen:
             problems.append(Problem(f"panel names must be unique; panels[{seen[panel.name]}] has it too",
-                                    ("panels", i, "name"), repr(panel.name)))
+                                    ("panels", i, "name"), toml_text(panel.name)))
         seen.setdefault(panel.name, i)
         unknown = [name for name in panel.source_names() if name not in spec.sources]
         if unknown:
             problems.append(Problem(f"no such source; sources are {sorted(spec.sources)}",
-                                    ("panels", i, "source"), repr(unknown[0])))
+                                    ("panels", i, "source"), toml_text(unknown[0])))
         elif source_name(spec, panel) is None:
             problems.append(Problem(f"several sources exist, so the panel must name one of {sorted(spec.sources)}",
                                     ("panels", i)))

@@ -7,12 +7,13 @@ from typing import Annotated, Literal
 
 from pydantic import Field, model_validator
 
-from figspec.spec.fields import Frozen, Name, WindowMs
+from figspec.spec.fields import MAX_TICKS, Frozen, Level, Magnitude, Name, PositiveMs, Seed, Text, WindowMs
 from figspec.spec.selection import TrialSelection
 
 Probability = Annotated[float, Field(gt=0, lt=1)]
 GridCell = tuple[Annotated[int, Field(ge=1)], Annotated[int, Field(ge=1)]]
-Step = Annotated[float, Field(gt=0)]
+Step = Magnitude
+Ticks = Annotated[list[Level], Field(min_length=1, max_length=MAX_TICKS)]
 
 
 class PanelBase(Frozen):
@@ -22,14 +23,14 @@ class PanelBase(Frozen):
     source: str | Annotated[list[str], Field(min_length=2)] | None = None
     unit: str | None = None
     units: list[str] | None = Field(default=None, min_length=1)
-    levels: list[float] | None = None
+    levels: Annotated[list[Level], Field(min_length=1, max_length=200)] | None = None
     cell: GridCell | None = None
     span: GridCell = (1, 1)
-    title: str | None = None
-    x_label: str | None = None
-    x_ticks: list[float] | None = None
+    title: Text | None = None
+    x_label: Text | None = None
+    x_ticks: Ticks | None = None
     x_step: Step | None = None
-    y_ticks: list[float] | None = None
+    y_ticks: Ticks | None = None
     y_step: Step | None = None
     keep: TrialSelection = TrialSelection()
 
@@ -66,7 +67,7 @@ class TimePanel(PanelBase):
     arrange: Literal["rows", "columns", "overlay"] = "rows"
     window_ms: WindowMs = (-50.0, 150.0)
     scale_bars: bool = False
-    time_bar_ms: Step | None = None
+    time_bar_ms: PositiveMs | None = None
 
     @model_validator(mode="after")
     def _arrangement(self) -> "TimePanel":
@@ -74,6 +75,12 @@ class TimePanel(PanelBase):
             raise ValueError("repeat = 'unit' needs units = [...] naming the units to repeat over")
         if self.repeat == "unit" and self.arrange != "overlay" and (self.levels is None or len(self.levels) != 1):
             raise ValueError("one axes per unit shows one level: set levels = [L]")
+        span = self.window_ms[1] - self.window_ms[0]
+        if self.x_step is not None and span / self.x_step > MAX_TICKS:
+            raise ValueError(f"x_step = {self.x_step:g} ms gives {span / self.x_step:.0f} ticks over window_ms; "
+                             f"at most {MAX_TICKS} ticks per axis")
+        if self.time_bar_ms is not None and self.time_bar_ms > span:
+            raise ValueError(f"time_bar_ms ({self.time_bar_ms:g} ms) is longer than window_ms ({span:g} ms)")
         return self
 
     def windows(self) -> dict[str, tuple[float, float]]:
@@ -93,8 +100,8 @@ class SummaryPanel(PanelBase):
     confidence: Probability = 0.95
     resamples: Annotated[int, Field(ge=200, le=100_000)] = 2000
     fit_resamples: Annotated[int, Field(ge=50, le=5000)] = 200
-    seed: int = 0
-    y_label: str | None = None
+    seed: Seed = 0
+    y_label: Text | None = None
 
     @model_validator(mode="after")
     def _windows(self) -> "SummaryPanel":

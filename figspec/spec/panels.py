@@ -11,7 +11,7 @@ from typing import Annotated, Literal, Union
 
 from pydantic import Field, ValidationInfo, field_validator, model_validator
 
-from figspec.spec.fields import PositiveMs, WindowMs
+from figspec.spec.fields import MAX_BINS, Magnitude, PositiveMs, Text, WindowMs
 from figspec.spec.panel_base import PanelBase, Probability, Step, SummaryPanel, TimePanel
 
 class RasterPanel(TimePanel):
@@ -40,9 +40,9 @@ class PsthPanel(TimePanel):
     smooth: Literal["none", "gaussian", "causal"] = "none"
     kernel_ms: PositiveMs | Literal["auto"] | None = None
     lock_y: bool = True
-    y_max: Annotated[float, Field(gt=0)] | None = None
-    y_label: str | None = None
-    rate_bar: Step | None = None
+    y_max: Magnitude | None = None
+    y_label: Text | None = None
+    rate_bar: Magnitude | None = None
 
     @field_validator("bin_ms")
     @classmethod
@@ -50,6 +50,9 @@ class PsthPanel(TimePanel):
         window = info.data.get("window_ms")
         if window is not None and bin_ms != "auto":
             n = (window[1] - window[0]) / bin_ms
+            if n > MAX_BINS:
+                raise ValueError(f"{bin_ms:g}-ms bins give {n:.3g} bins over window_ms [{window[0]:g}, {window[1]:g}]; "
+                                 f"at most {MAX_BINS} bins per histogram")
             if abs(n - round(n)) > 1e-6 * max(1.0, n):
                 raise ValueError(f"window_ms [{window[0]:g}, {window[1]:g}] must hold a whole number "
                                  f"of bins ({n:.3g} bins of {bin_ms:g} ms)")
@@ -57,6 +60,14 @@ class PsthPanel(TimePanel):
 
     @model_validator(mode="after")
     def _consistent(self) -> "PsthPanel":
+        span = self.window_ms[1] - self.window_ms[0]
+        if self.bin_ms == "auto" and self.bin_search_ms[0] <= 0:
+            raise ValueError("bin_search_ms holds the narrowest and widest bin widths tried, in ms, > 0")
+        if self.bin_ms == "auto" and span / self.bin_search_ms[0] > MAX_BINS:
+            raise ValueError(f"bin_search_ms starts at {self.bin_search_ms[0]:g} ms, which gives "
+                             f"{span / self.bin_search_ms[0]:.3g} bins over window_ms; at most {MAX_BINS} bins")
+        if isinstance(self.kernel_ms, float) and self.kernel_ms > span:
+            raise ValueError(f"kernel_ms ({self.kernel_ms:g} ms) is wider than window_ms ({span:g} ms)")
         if self.smooth != "none" and self.kernel_ms is None:
             raise ValueError(f"smooth = {self.smooth!r} needs kernel_ms (a width in ms, or 'auto')")
         if self.smooth == "none" and self.kernel_ms is not None:
@@ -120,6 +131,10 @@ class LatencyPanel(SummaryPanel):
 
     @model_validator(mode="after")
     def _baseline_bins(self) -> "LatencyPanel":
+        span = max(self.response_ms[1], self.baseline_ms[1]) - min(self.response_ms[0], self.baseline_ms[0])
+        if span / self.bin_ms > MAX_BINS:
+            raise ValueError(f"{self.bin_ms:g}-ms bins give {span / self.bin_ms:.3g} bins over baseline_ms and "
+                             f"response_ms; at most {MAX_BINS} bins per histogram")
         bins = (self.baseline_ms[1] - self.baseline_ms[0]) / self.bin_ms
         if self.method == "threshold" and bins < 2 - 1e-9:
             raise ValueError(f"the threshold method estimates the baseline SD from its bins: baseline_ms must hold "

@@ -65,7 +65,7 @@ class SourceBase(Frozen):
     clock: Literal["aligned", "trial", "session"] | None = None
     align: str = "onset"
     extent_ms: WindowMs | None = None
-    tick_us: Annotated[float, Field(gt=0, le=1000)] = 1.0
+    tick_us: Annotated[float, Field(ge=0.001, le=1000)] = 1.0
     keep: TrialSelection = TrialSelection()
 
     @model_validator(mode="after")

@@ -12,8 +12,8 @@ from typing import Annotated, Literal
 
 from pydantic import Field
 
-from figspec.errors import Problem, SpecError
-from figspec.spec.fields import Colour, Fraction, Frozen, Points
+from figspec.errors import Problem, SpecError, toml_text
+from figspec.spec.fields import Colour, ColourMap, Fraction, Frozen, Points
 
 BUILTIN_STYLES = Path(__file__).resolve().parents[1] / "styles"   # shipped inside the package
 
@@ -51,8 +51,8 @@ class StimulusStyle(Frozen):
 
 class PaletteStyle(Frozen):
     units: list[Colour] = Field(min_length=1)
-    levels: str
-    stimulus_levels: str
+    levels: ColourMap
+    stimulus_levels: ColourMap
 
 
 class LetterStyle(Frozen):
@@ -153,7 +153,7 @@ def style_path(name: str, folder: Path | None = None) -> Path:
             return candidate
     raise SpecError(Problem(f"no style named {name!r} (looked in styles/ beside the spec, one folder up, "
                             f"and among figspec's own: {', '.join(builtin_styles())})", ("figure", "style"),
-                            repr(name)))
+                            toml_text(name)))
 
 
 def builtin_styles() -> list[str]:

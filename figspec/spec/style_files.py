@@ -14,7 +14,7 @@ from typing import Any
 
 from pydantic import ValidationError
 
-from figspec.errors import Loc, Problem, SpecError
+from figspec.errors import Loc, Problem, SpecError, toml_text
 from figspec.spec.keylines import index_key_lines, line_for
 from figspec.spec.style import Style, style_path
 
@@ -61,7 +61,7 @@ def read_chain(name: str, folder: Path | None, seen: tuple[Path, ...] = ()) -> l
     if parent is None:
         return [source]
     if not isinstance(parent, str):
-        raise SpecError(Problem("extends names a style", ("extends",), repr(parent), file=str(path),
+        raise SpecError(Problem("extends names a style", ("extends",), toml_text(parent), file=str(path),
                                 line=source.line(("extends",))))
     return read_chain(parent, path.parent, seen + (path,)) + [source]
 

@@ -3,6 +3,8 @@
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 from figspec.draw.context import styled
 from figspec.errors import UserError
 from figspec.output.journal_check import journal_check
@@ -13,7 +15,13 @@ from figspec.steps.resolve import Resolved
 
 def profile(resolved: Resolved, name: str | None) -> Profile | None:
     """The profile ``name`` (else the spec's ``figure.journal``), or None when neither names one."""
-    name = name or resolved.spec.model.figure.journal
+    if name:                          # named on the command line: not the spec's mistake
+        try:
+            return load_profile(name, resolved.spec.folder)
+        except UserError as err:
+            raise type(err)([replace(p, loc=(), message=f"--journal {name}: {p.message}") if p.loc == ("figure", "journal")
+                             else p for p in err.problems]) from None
+    name = resolved.spec.model.figure.journal
     if name is None:
         return None
     try:

@@ -13,8 +13,9 @@ from figspec.data.keep import select_trials
 from figspec.data.pooling import pool, pooled_name
 from figspec.data.readers import load_source
 from figspec.data.recording import Recording
-from figspec.errors import DataError, Problem, UserError
+from figspec.errors import DataError, Problem, UserError, toml_text
 from figspec.registry import kind_of
+from figspec.spec.fields import MAX_AXES, MAX_PIXELS
 from figspec.spec.loader import LoadedSpec
 from figspec.spec.models import source_name
 from figspec.spec.panel_base import PanelBase
@@ -58,6 +59,9 @@ def resolve(spec: LoadedSpec, style: str | None = None, frames: dict | None = No
     problems = [p for _, _, found in done for p in found]
     if problems:
         raise spec.error(problems, DataError)
+    problems = figure_limits(spec.model, [(p, rec) for p, rec, _ in done])
+    if problems:
+        raise spec.error(problems)
     return Resolved(spec=spec, recordings=recordings, panels=tuple(p for p, _, _ in done),
                     style=resolved_style.style, style_sources=resolved_style.sources,
                     panel_recordings={p.name: rec for p, rec, _ in done})
@@ -103,6 +107,8 @@ def complete_panel(spec: LoadedSpec, recordings: dict[str, Recording], i: int):
     panel = panel.model_copy(update={"source": src, "unit": unit, "units": units})
     if not problems:
         problems += _level_problems(panel, rec, src) + extent_problems(panel, rec)
+    if not problems:
+        warn_empty_windows(panel, rec)
     kind = kind_of(panel)
     if not problems:
         problems += kind.check(rec, panel, spec.model.levels)
@@ -152,12 +158,12 @@ def _unit_name(name: str, rec: Recording, recordings: dict, src, pooled: bool, l
             return full, []
         if len(holders) > 1:
             return None, [Problem(f"several pooled sources have this unit: name one of {', '.join(holders)}",
-                                  loc, repr(name))]
+                                  loc, toml_text(name))]
     elif name in rec.units:
         return name, []
     close = difflib.get_close_matches(name, rec.units, n=1)
     hint = f"; did you mean {close[0]!r}?" if close else f"; units: {', '.join(rec.units)}"
-    return None, [Problem(f"no such unit in source {src!r}{hint}", loc, repr(name))]
+    return None, [Problem(f"no such unit in source {src!r}{hint}", loc, toml_text(name))]
 
 
 def _level_problems(panel: PanelBase, rec: Recording, src) -> list[Problem]:
@@ -166,6 +172,33 @@ def _level_problems(panel: PanelBase, rec: Recording, src) -> list[Problem]:
         return []
     return [Problem(f"levels not presented in source {src!r} (presented: {', '.join(f'{v:g}' for v in rec.levels)})",
                     ("levels",), ", ".join(f"{v:g}" for v in missing))]
+
+
+def warn_empty_windows(panel: PanelBase, rec: Recording) -> None:
+    """A unit with spikes of which none falls in any of the panel's windows, in any trial, is
+    most likely read with the wrong time unit or clock (a silent unit has no spikes at all)."""
+    import warnings
+
+    from figspec.errors import FigspecWarning
+
+    windows = list(panel.windows().values())
+    for unit in panel.unit_names():
+        if unit not in rec.units:
+            continue
+        pairs = np.flatnonzero(rec.pair_unit == rec.units.index(unit))
+        if pairs.size == 0:
+            continue
+        ticks = rec.ticks[rec.offsets[pairs[0]]:rec.offsets[pairs[-1] + 1]]      # a unit's pairs are contiguous
+        if ticks.size == 0:
+            continue
+        inside = np.zeros(ticks.size, dtype=bool)
+        for start, stop in windows:
+            inside |= (ticks >= rec.to_ticks(start)) & (ticks < rec.to_ticks(stop))
+        if not inside.any():
+            warnings.warn(f"panel {panel.name!r}: none of the {ticks.size} spikes of unit {unit} falls in "
+                          f"{' or '.join(f'[{a:g}, {b:g}) ms' for a, b in windows)} of any trial: is the "
+                          "source's time_unit right, and are spikes and trial events on the same clock?",
+                          FigspecWarning, stacklevel=2)
 
 
 def extent_problems(panel: PanelBase, rec: Recording) -> list[Problem]:
@@ -184,4 +217,29 @@ def extent_problems(panel: PanelBase, rec: Recording) -> list[Problem]:
                 f"reaches past what was recorded of {int(short.sum())} of {shown.size} trials shown (recorded "
                 f"from {np.max(lo):g} to {np.min(hi):g} ms around the alignment event in every trial)",
                 (key,), f"[{start:g}, {stop:g}]"))
+    return problems
+
+
+def axes_count(panel: PanelBase, rec: Recording) -> int:
+    """How many axes a panel draws: one per level or unit it repeats over, else one."""
+    if getattr(panel, "arrange", "overlay") == "overlay":
+        return 1
+    if getattr(panel, "repeat", "level") == "unit":
+        return len(panel.units or ())
+    return len(panel.levels) if panel.levels is not None else len(rec.levels)
+
+
+def figure_limits(model, panels: list[tuple[PanelBase, Recording]]) -> list[Problem]:
+    """Limits that keep a figure renderable: its PNG's pixels and its number of axes."""
+    problems = []
+    fig = model.figure
+    pixels = (fig.width_mm / 25.4 * fig.png_dpi) * (fig.height_mm / 25.4 * fig.png_dpi)
+    if "png" in fig.formats and pixels > MAX_PIXELS:
+        problems.append(Problem(f"{fig.width_mm:g} x {fig.height_mm:g} mm at {fig.png_dpi} dpi is {pixels / 1e6:.0f} "
+                                f"million pixels; at most {MAX_PIXELS / 1e6:.0f} million (lower png_dpi or the size)",
+                                ("figure", "png_dpi"), str(fig.png_dpi)))
+    total = sum(axes_count(p, rec) for p, rec in panels)
+    if total > MAX_AXES:
+        problems.append(Problem(f"the panels draw {total} axes; at most {MAX_AXES} per figure (split the figure, "
+                                "or show fewer levels with 'levels')", ("panels",)))
     return problems

@@ -8,6 +8,7 @@ from typing import TYPE_CHECKING, Sequence
 
 from figspec import __version__
 from figspec.compute.describe import About
+from figspec.output.names import output_stem
 from figspec.output.files import figure_files, table_bytes, write_all
 from figspec.output.provenance import input_files, parameters, provenance_line
 from figspec.output.report import legend_text, manifest, statistics_table
@@ -67,11 +68,11 @@ def save(resolved: Resolved, tables: Tables, fig: "Figure", outdir: str | Path,
     :func:`figspec.output.files.write_all`); returns the paths written."""
     model = resolved.spec.model
     outdir = Path(outdir)
-    stem = outdir / resolved.spec.path.stem
-    data_dir = outdir / f"{stem.name}_data"
+    stem = output_stem(resolved.spec.path)
+    data_dir = outdir / f"{stem}_data"
     sources = inputs(resolved)
     files = figures(resolved, fig, formats or model.figure.formats, provenance_line(sources))
-    payload = {stem.with_suffix(f".{fmt}"): data for fmt, data in files.items()}
+    payload = {outdir / f"{stem}.{fmt}": data for fmt, data in files.items()}
     for name, table in tables.for_export().items():
         payload[data_dir / f"{name}.csv"] = table_bytes(table)
     payload[data_dir / "statistics.csv"] = table_bytes(statistics(resolved, tables))

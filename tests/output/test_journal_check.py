@@ -75,6 +75,6 @@ def test_file_size_limit(tmp_path):
 
 def test_strict_journal_check_exits_2(tmp_path, cli):
     path = write_spec(tmp_path, SMALL_SPEC.replace("height_mm = 120", 'height_mm = 120\nformats = ["pdf"]'))
-    assert cli("check", path, "--journal", "nature").returncode == 0
-    strict = cli("check", path, "--journal", "nature", "--strict")
+    assert cli("check", path, "--profile", "nature").returncode == 0
+    strict = cli("check", path, "--profile", "nature", "--strict")
     assert strict.returncode == 2 and "journal check Nature: width: figure, page:" in strict.stderr

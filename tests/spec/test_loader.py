@@ -28,15 +28,15 @@ def test_unknown_kind_suggests_the_nearest(tmp_path):
     path = write_spec(tmp_path, MINIMAL_SPEC.replace('kind = "psth"', 'kind = "psht"'))
     [problem] = problems_of(path)
     assert problem.loc == ("panels", 1, "kind")
-    assert "did you mean 'psth'" in problem.message and problem.got == "'psht'"
+    assert "did you mean 'psth'" in problem.message and problem.got == '"psht"'
 
 
 def test_bad_value_reports_what_was_found(tmp_path):
     path = write_spec(tmp_path, MINIMAL_SPEC.replace("bin_ms = 10", "bin_ms = -5"))
     [problem] = problems_of(path)
     line = MINIMAL_SPEC.splitlines().index("bin_ms = 10") + 1
-    assert problem.format() == (f"{path}:{line}: panels[1].bin_ms: Input should be greater than 0, "
-                                "or input should be 'auto' (got -5)")
+    assert problem.format() == (f"{path}:{line}: panels[1].bin_ms: should be greater than 0, "
+                                "or should be 'auto' (got -5)")
 
 
 def test_several_problems_are_all_reported(tmp_path):
