@@ -102,28 +102,29 @@ def test_source_data_equals_what_is_drawn(two_renders):
 
 
 def test_failed_render_leaves_earlier_outputs_untouched(tmp_path, monkeypatch):
-    import figspec.output.files as files
+    import errno
+
+    import figspec.output.output_set as output_set
 
     out = tmp_path / "out"
     spec = write_spec(tmp_path, SMALL_SPEC, "fig.toml")
     pipeline.render(spec, out)
     before = {p: p.read_bytes() for p in out.rglob("*") if p.is_file()}
-    real = files.os.fdopen
     calls = {"n": 0}
 
-    def failing(fd, *args, **kwargs):
+    def failing(path, mode="r", *args, **kwargs):
         calls["n"] += 1
         if calls["n"] == 3:                              # two files already staged
-            files.os.close(fd)
-            raise OSError("disk full")
-        return real(fd, *args, **kwargs)
+            raise OSError(errno.ENOSPC, "No space left on device")
+        return open(path, mode, *args, **kwargs)
 
-    monkeypatch.setattr(files.os, "fdopen", failing)
+    monkeypatch.setattr(output_set, "open", failing, raising=False)
     spec.write_text(spec.read_text().replace("bin_ms = 10", "bin_ms = 20"))
-    with pytest.raises(OSError, match="disk full"):
+    with pytest.raises(output_set.OutputError, match="the disk is full"):
         pipeline.render(spec, out)
     after = {p: p.read_bytes() for p in out.rglob("*") if p.is_file()}
     assert after == before                                # nothing replaced, no temporary file left
+    assert not any(p.name.startswith(".") for p in out.iterdir())     # no staging folder left
 
 
 def test_compare_passes_unchanged_and_catches_a_2_ms_bin_change(tmp_path):

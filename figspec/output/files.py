@@ -5,7 +5,6 @@ from __future__ import annotations
 import io
 import os
 import re
-import tempfile
 from pathlib import Path
 from typing import TYPE_CHECKING, Iterable
 
@@ -60,21 +59,29 @@ def table_bytes(table: pd.DataFrame) -> bytes:
 
 
 def write_all(payload: dict[Path, bytes]) -> list[Path]:
-    """Write every file as a set: all contents go to temporary files beside their targets
-    first, and only when all are written are they renamed into place. A failure before that
-    leaves every previous output untouched (and no temporary file behind)."""
-    staged: list[tuple[str, Path]] = []
+    """Write files that are not a spec's output set (review images, baselines): each goes to a
+    temporary file beside its target first and is renamed into place when all are written, so
+    a failure leaves the previous files as they were. New files get the ordinary permissions
+    (0666 less the umask); a file-system failure is an :class:`OutputError`."""
+    from figspec.output.output_set import output_problem
+
+    staged: list[tuple[Path, Path]] = []
     try:
         for path, data in payload.items():
             path.parent.mkdir(parents=True, exist_ok=True)
-            fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
+            tmp = path.parent / f".{path.name}.{os.getpid()}.{len(staged)}.partial"
+            fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_TRUNC, 0o666)
             staged.append((tmp, path))
             with os.fdopen(fd, "wb") as handle:
                 handle.write(data)
+        for tmp, path in staged:
+            os.replace(tmp, path)
+    except OSError as err:
+        for tmp, _ in staged:
+            tmp.unlink(missing_ok=True)
+        raise output_problem(err, Path(err.filename) if err.filename else next(iter(payload))) from None
     except BaseException:
         for tmp, _ in staged:
-            Path(tmp).unlink(missing_ok=True)
+            tmp.unlink(missing_ok=True)
         raise
-    for tmp, path in staged:
-        os.replace(tmp, path)
     return list(payload)

@@ -53,8 +53,13 @@ def read_chain(name: str, folder: Path | None, seen: tuple[Path, ...] = ()) -> l
 
     path = style_path(name, folder).resolve()
     if path in seen:
-        raise SpecError(Problem("styles extend each other in a circle: " + " -> ".join(p.name for p in seen + (path,)),
-                                ("extends",), file=str(seen[-1])))
+        circle = seen[seen.index(path):]
+        problems = []
+        for here, there in zip(circle, circle[1:] + (path,)):
+            text = here.read_text(encoding="utf-8-sig")
+            problems.append(Problem(f"styles extend each other in a circle: this file extends {there.name}",
+                                    ("extends",), file=str(here), line=line_for(index_key_lines(text), ("extends",))))
+        raise SpecError(problems)
     text, data = read_toml(path)
     source = StyleSource(path, text, data, (), index_key_lines(text))
     parent = data.get("extends")

@@ -10,7 +10,7 @@ from figspec.errors import UserError
 from figspec.output.journal_check import journal_check
 from figspec.registry import kind_of
 from figspec.spec.journals import Profile, load_profile
-from figspec.steps.resolve import Resolved
+from figspec.steps.resolve import Resolved, pulled_in
 
 
 def profile(resolved: Resolved, name: str | None) -> Profile | None:
@@ -27,7 +27,8 @@ def profile(resolved: Resolved, name: str | None) -> Profile | None:
     try:
         return load_profile(name, resolved.spec.folder)
     except UserError as err:
-        raise type(err)([resolved.spec.locate(p) for p in err.problems]) from None
+        located = type(err)([resolved.spec.locate(p) for p in err.problems])
+        raise pulled_in(resolved.spec, located, ("figure", "journal"), f"journal profile {name!r}") from None
 
 
 def findings(resolved: Resolved, fig, files: dict[str, bytes], target: Profile) -> list:

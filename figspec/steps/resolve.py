@@ -72,7 +72,19 @@ def load_style(spec: LoadedSpec, style: str | None) -> ResolvedStyle:
     try:
         return resolve_style(name, folder, spec.model.style, spec.path, spec.text)
     except UserError as err:
-        raise _located(spec, err) from None
+        if style:                        # named on the command line, not by the spec
+            raise type(err)([replace(p, loc=(), message=f"--style {style}: {p.message}") if p.file is None else p
+                             for p in err.problems]) from None
+        raise pulled_in(spec, _located(spec, err), ("figure", "style"), f"style {name!r}") from None
+
+
+def pulled_in(spec: LoadedSpec, err: UserError, loc: tuple, what: str) -> UserError:
+    """``err`` with one more line at the spec key that pulled in the file(s) it is about."""
+    if all(p.file == str(spec.path) for p in err.problems):
+        return err
+    files = sorted({p.file for p in err.problems if p.file != str(spec.path)})
+    return type(err)(err.problems + [spec.locate(Problem(f"{what} is read from {' and '.join(files)}: see the "
+                                                         "problem(s) above", loc))])
 
 
 def load_recordings(spec: LoadedSpec, frames: dict) -> dict[str, Recording]:

@@ -3,13 +3,15 @@ legend text and the manifest, written as one set."""
 
 from __future__ import annotations
 
+import glob
 from pathlib import Path
 from typing import TYPE_CHECKING, Sequence
 
 from figspec import __version__
 from figspec.compute.describe import About
 from figspec.output.names import output_stem
-from figspec.output.files import figure_files, table_bytes, write_all
+from figspec.output.files import figure_files, table_bytes
+from figspec.output.output_set import write_set
 from figspec.output.provenance import input_files, parameters, provenance_line
 from figspec.output.report import legend_text, manifest, statistics_table
 from figspec.registry import kind_of
@@ -65,7 +67,8 @@ def statistics(resolved: Resolved, tables: Tables):
 def save(resolved: Resolved, tables: Tables, fig: "Figure", outdir: str | Path,
          formats: Sequence[str] | None = None) -> list[Path]:
     """Write ``OUTDIR/<stem>.<format>`` and ``OUTDIR/<stem>_data/`` as one set (see
-    :func:`figspec.output.files.write_all`); returns the paths written."""
+    :func:`figspec.output.output_set.write_set`); returns the paths written. Earlier outputs of
+    the same spec that this render does not write (a format left out, a panel removed) go."""
     model = resolved.spec.model
     outdir = Path(outdir)
     stem = output_stem(resolved.spec.path)
@@ -81,4 +84,5 @@ def save(resolved: Resolved, tables: Tables, fig: "Figure", outdir: str | Path,
     payload[data_dir / "manifest.json"] = manifest(sources, outputs,
                                                    {**parameters(model, resolved.panels, resolved.style),
                                                     "removed": removed(resolved)})
-    return write_all(payload)
+    owned = tuple(f"{glob.escape(stem)}{tail}" for tail in (".svg", ".pdf", ".png", "_data/*"))
+    return write_set(outdir, stem, payload, owned)
