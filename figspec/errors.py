@@ -15,13 +15,17 @@ Loc = tuple[str | int, ...]
 
 
 def format_key_path(loc: Loc) -> str:
-    """Render a key path as ``panels[1].bin_ms``."""
+    """Render a key path as ``panels[1].bin_ms`` (a key that is not a bare TOML key is quoted,
+    as in the file: ``sources."rig.1"``)."""
+    import re
+
     out = ""
     for part in loc:
         if isinstance(part, int):
             out += f"[{part}]"
         else:
-            out += ("." if out else "") + str(part)
+            text = str(part) if re.fullmatch(r"[A-Za-z0-9_-]+", str(part)) else json.dumps(str(part), ensure_ascii=False)
+            out += ("." if out else "") + text
     return out
 
 

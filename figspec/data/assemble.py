@@ -116,6 +116,7 @@ def assemble(spikes: pd.DataFrame, trials: pd.DataFrame | None, layout: Layout) 
     table, times = trial_table(trials, keys, layout)
     keep, removed = select_trials(table, keys, layout.keep, layout.keep_loc)
     spikes["unit"] = spikes["unit"].astype(str)
+    check_unit_names(spikes["unit"], layout)
     per_unit = "unit" in table
     names = set(spikes["unit"].unique().tolist()) | (set(table["unit"].unique().tolist()) if per_unit else set())
     units = sorted(names, key=natural_key)
@@ -161,6 +162,17 @@ def check_inside_extent(ticks: np.ndarray, table: pd.DataFrame, trial_of_spike: 
     if outside > ticks.size / 2:
         warnings.warn(f"{layout.where}: {outside} of {ticks.size} spikes fall outside their trial's recorded extent: "
                       f"{hint}", FigspecWarning, stacklevel=3)
+
+
+def check_unit_names(units: pd.Series, layout: Layout) -> None:
+    """Unit names are drawn as text: one with a control character would make an invalid SVG."""
+    from figspec.spec.fields import control_characters
+
+    names = units.unique()
+    bad = [name for name in names if control_characters(name)]
+    if bad:
+        raise DataError(Problem(f"unit names may not hold control characters ({len(bad)} do, e.g. "
+                                f"{bad[0]!r})", layout.locs.get("unit", ()), layout.where))
 
 
 LONGEST_STIMULUS_MS = 10_000     # common practice: single-unit stimuli last ms to seconds, rarely longer
@@ -219,6 +231,10 @@ def trial_table(trials: pd.DataFrame, keys: list[str], layout: Layout) -> tuple[
         trials["stim_stop_ms"] = (ticks["offset"] - align) / per_ms
     else:
         trials["stim_stop_ms"] = np.nan
+    if "start" in ticks and "stop" in ticks and np.any(ticks["stop"] <= ticks["start"]):
+        bad = int(np.count_nonzero(ticks["stop"] <= ticks["start"]))
+        raise DataError(Problem(f"every trial must stop after it starts; {bad} trials do not", locs.get("stop", ()),
+                                where))
     trials["extent_lo_ms"], trials["extent_hi_ms"] = _extent(ticks, align, layout)
     trials["trial"] = trials[keys[0]] if len(keys) == 1 else trials[keys].astype(str).agg("/".join, axis=1)
     _unique_trials(trials, keys, layout)

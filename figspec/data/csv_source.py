@@ -37,6 +37,29 @@ def check_file(path: Path, file_loc: Loc) -> None:
         raise DataError(Problem(f"cannot read {path}: {err.strerror}", file_loc)) from None
 
 
+def ragged_row(path: Path, delimiter: str, n_fields: int) -> tuple[int, int] | None:
+    """(line number, fields) of the first row whose number of fields differs from the
+    header's, or None. Counted with numpy over the file's bytes (one pass, no Python loop over
+    rows); a file with quoted fields goes through the csv module instead, which knows quotes."""
+    import numpy as np
+
+    data = path.read_bytes()
+    if b'"' in data:
+        with open(path, encoding="utf-8-sig", newline="") as handle:
+            for number, row in enumerate(csv.reader(handle, delimiter=delimiter), start=1):
+                if row and len(row) != n_fields:
+                    return number, len(row)
+        return None
+    raw = np.frombuffer(data, dtype=np.uint8)
+    breaks = np.flatnonzero(raw == ord("\n"))
+    ends = np.append(breaks, raw.size) if raw.size and raw[-1] != ord("\n") else breaks
+    starts = np.concatenate([[0], ends[:-1] + 1])
+    counts = np.diff(np.concatenate([[0], np.cumsum(raw == ord(delimiter))[ends - 1]])) if ends.size else ends
+    blank = (ends - starts) <= np.where((ends - starts > 0) & (raw[np.maximum(ends - 1, 0)] == ord("\r")), 1, 0)
+    bad = np.flatnonzero((counts + 1 != n_fields) & ~blank)
+    return (int(bad[0]) + 1, int(counts[bad[0]]) + 1) if bad.size else None
+
+
 def _header(path: Path, delimiter: str, file_loc: Loc) -> list[str]:
     try:
         with open(path, encoding="utf-8-sig", newline="") as handle:
@@ -46,6 +69,9 @@ def _header(path: Path, delimiter: str, file_loc: Loc) -> list[str]:
                                 "Parquet: set format)?", file_loc)) from None
     if not first.strip():
         raise DataError(Problem(f"{path} is empty: a CSV file starts with a header row", file_loc))
+    if "\x00" in first or b"\x00" in path.read_bytes()[:1 << 20]:
+        raise DataError(Problem(f"{path} holds NUL bytes: is it a text file in UTF-8 (or another format, e.g. "
+                                "Parquet: set format)?", file_loc))
     return next(csv.reader([first], delimiter=delimiter))
 
 
@@ -81,4 +107,9 @@ def read_table(path: Path, wanted: Plan, file_loc: Loc, delimiter: str = ",", sr
         raise DataError(Problem(f"cannot read {path} as CSV: {str(err).strip().splitlines()[-1]}", file_loc)) from None
     if frame.empty:
         raise DataError(Problem(f"{path} has a header but no rows", file_loc))
+    ragged = ragged_row(path, delimiter, len(header))
+    if ragged is not None:
+        line, fields = ragged
+        raise DataError(Problem(f"line {line} of {path} has {fields} fields, the header {len(header)}: a missing "
+                                "or extra delimiter?", file_loc))
     return pd.DataFrame({canonical: frame[column].to_numpy() for canonical, (column, _) in wanted.items()})

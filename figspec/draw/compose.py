@@ -69,8 +69,8 @@ def compose(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> "Figu
         axes_of[plan.panel.name] = _draw_panel(sub, plan, spec, ctx, appearance, labelled_rows, (r, h))
     for plan in plans:
         apply_scales(axes_of[plan.panel.name], scales.get(plan.panel.name, {}))
-    for plan in plans:
-        apply_ticks(axes_of[plan.panel.name], plan.panel)
+    for i, plan in enumerate(plans):                 # plans follow [[panels]]: i is the spec's index
+        apply_ticks(axes_of[plan.panel.name], plan.panel, ("panels", i))
     if layout and layout.letters:
         _letters(fig, ctx)
     if spec.figure.title:

@@ -58,10 +58,22 @@ def apply_scales(axes: list["Axes"], scales: dict[str, Scale]) -> None:
             current = get()
             put(*((hi, lo) if current[0] > current[1] else (lo, hi)))
             if step:
+                _check_step(step, lo, hi, f"{axis} step of its shared group", ("shared",))
                 (ax.xaxis if axis == "x" else ax.yaxis).set_major_locator(MultipleLocator(step))
 
 
-def apply_ticks(axes: list["Axes"], panel) -> None:
+def _check_step(step: float, lo: float, hi: float, what: str, loc: tuple = ()) -> None:
+    """A tick step that would give more ticks than figspec draws on one axis is an error."""
+    from figspec.errors import DataError, Problem
+    from figspec.spec.fields import MAX_TICKS
+
+    count = abs(hi - lo) / step
+    if count > MAX_TICKS:
+        raise DataError(Problem(f"the {what} ({step:g}) gives {count:.0f} ticks over the axis' range "
+                                f"[{min(lo, hi):g}, {max(lo, hi):g}]; at most {MAX_TICKS} per axis", loc))
+
+
+def apply_ticks(axes: list["Axes"], panel, loc: tuple = ()) -> None:
     """Tick positions (``x_ticks``, ``y_ticks``) or steps (``x_step``, ``y_step``) of a panel."""
     from matplotlib.ticker import FixedLocator, MultipleLocator
 
@@ -71,4 +83,6 @@ def apply_ticks(axes: list["Axes"], panel) -> None:
             continue
         for ax in axes:
             target = ax.xaxis if axis == "x" else ax.yaxis
+            if step is not None:
+                _check_step(step, *(ax.get_xlim() if axis == "x" else ax.get_ylim()), f"{axis}_step", loc + (f"{axis}_step",))
             target.set_major_locator(FixedLocator(ticks) if ticks is not None else MultipleLocator(step))

@@ -11,7 +11,7 @@ from typing import Annotated, Literal
 from pydantic import Field, model_validator
 
 from figspec.errors import Problem, toml_text
-from figspec.spec.fields import Frozen
+from figspec.spec.fields import MAX_TICKS, Frozen
 
 Count = Annotated[int, Field(ge=1, le=50)]
 Ratio = Annotated[float, Field(gt=0, le=100)]
@@ -58,12 +58,16 @@ class SharedGroup(Frozen):
     panels: list[str] = Field(min_length=1)
     axis: Literal["x", "y", "both"] = "y"
     limits: tuple[float, float] | None = None
-    step: Annotated[float, Field(gt=0)] | None = None
+    step: Annotated[float, Field(gt=0, le=1e9)] | None = None
 
     @model_validator(mode="after")
     def _limits(self) -> "SharedGroup":
         if self.limits is not None and not self.limits[0] < self.limits[1]:
             raise ValueError(f"limits must be [low, high] with low < high, got {list(self.limits)}")
+        if self.limits is not None and self.step is not None and \
+                (self.limits[1] - self.limits[0]) / self.step > MAX_TICKS:
+            raise ValueError(f"step = {self.step:g} gives {(self.limits[1] - self.limits[0]) / self.step:.0f} ticks "
+                             f"over limits {list(self.limits)}; at most {MAX_TICKS} per axis")
         if self.limits is not None and self.axis == "both":
             raise ValueError("fixed limits apply to one axis: give axis = 'x' or 'y'")
         return self

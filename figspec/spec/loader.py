@@ -71,11 +71,49 @@ def strict_validate(model: type[M], data: dict[str, Any]) -> M:
 def validate(model: type[M], data: dict[str, Any], path: Path, text: str) -> M:
     """Validate ``data`` against ``model``; every failure becomes a located :class:`Problem`."""
     lines = index_key_lines(text)
+    dates = [Problem("a TOML date or time is not a value figspec reads", loc, str(value))
+             for loc, value in _dates(data, ())]
+    if dates:
+        raise SpecError([p.located(str(path), line_for(lines, p.loc)) for p in dates])
     try:
         return strict_validate(model, data)
     except ValidationError as err:
-        problems = _merge_union_errors([problem_from_pydantic(model, e) for e in err.errors(include_url=False)])
+        errors = _drop_type_misses(err.errors(include_url=False))
+        problems = _merge_union_errors([problem_from_pydantic(model, e) for e in errors])
         raise SpecError([p.located(str(path), line_for(lines, p.loc)) for p in problems]) from None
+
+
+def _dates(value: Any, loc: Loc) -> list[tuple[Loc, Any]]:
+    """Key paths of every TOML date, time or date-time in parsed ``value``."""
+    import datetime
+
+    if isinstance(value, (datetime.date, datetime.time)):
+        return [(loc, value)]
+    if isinstance(value, dict):
+        return [found for key, item in value.items() for found in _dates(item, loc + (key,))]
+    if isinstance(value, list):
+        return [found for i, item in enumerate(value) for found in _dates(item, loc + (i,))]
+    return []
+
+
+_TYPE_MISSES = {"string_type", "int_type", "float_type", "bool_type", "list_type", "tuple_type", "dict_type",
+                "model_type", "literal_error", "int_parsing", "float_parsing", "bool_parsing"}
+
+
+def _drop_type_misses(errors: list[dict]) -> list[dict]:
+    """When a union member that takes a table (``{ min = 0, max = 5 }``, ``{ math = "..." }``)
+    found what is wrong inside the table, the other members' "not a number" / "not a string"
+    complaints about that same table are noise: keep only the table's own errors."""
+    tables = [e["loc"][:-1] for e in errors if e["type"] not in _TYPE_MISSES]
+
+    def noise(e: dict) -> bool:
+        if e["type"] not in _TYPE_MISSES or not isinstance(e.get("input"), dict):
+            return False
+        base = e["loc"][:-1]
+        return any(len(t) >= len(base) and t[:len(base)] == base for t in tables)
+
+    kept = [e for e in errors if not noise(e)]
+    return kept or errors
 
 
 def _merge_union_errors(problems: list[Problem]) -> list[Problem]:
@@ -176,6 +214,8 @@ def walk_loc(root: type[BaseModel], loc: Loc) -> tuple[Loc, type[BaseModel] | No
     for item in loc:
         tp = _unwrap(tp)
         member = _tagged_member(tp, item) if isinstance(item, str) else None
+        if member is None and isinstance(item, str):          # an untagged union names its member's class
+            member = next((m for m in _members(tp) if m.__name__ == item), None)
         if member is not None:
             tp = member
             continue
@@ -213,7 +253,10 @@ def _brief(value: Any) -> str:
 _WORDS = (("a valid dictionary", "a table"), ("an object", "a table"), ("a valid list", "an array"),
           ("a valid tuple", "an array"), ("a valid array", "an array"), ("Input should be", "should be"),
           ("List should have", "should have"), ("Tuple should have", "should have"),
-          (" after validation", ""), ("a valid string", "a string (in quotes)"))
+          (" after validation", ""), ("a valid string", "a string (in quotes)"),
+          ("String should have", "should have"), ("should be a valid number", "should be a number"),
+          ("should be a valid integer", "should be a whole number"), ("should be a valid boolean",
+                                                                         "should be true or false"))
 
 
 def plain_message(message: str) -> str:

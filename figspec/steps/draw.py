@@ -7,6 +7,7 @@ from typing import TYPE_CHECKING
 
 from figspec.draw.compose import PanelPlan, compose
 from figspec.draw.context import DrawContext, Labels, check_fonts, styled
+from figspec.errors import UserError
 from figspec.registry import kind_of
 from figspec.spec.panel_base import PanelBase
 from figspec.steps.compute import Tables
@@ -22,7 +23,10 @@ def draw(resolved: Resolved, tables: Tables) -> "Figure":
     model = resolved.spec.model
     ctx = DrawContext(style=resolved.style, levels=model.levels)
     with styled(resolved.style):
-        return compose(model, [plan(resolved, tables, p) for p in resolved.panels], ctx)
+        try:
+            return compose(model, [plan(resolved, tables, p) for p in resolved.panels], ctx)
+        except UserError as err:               # limits found only with the data drawn (a tick step)
+            raise type(err)([resolved.spec.locate(p) for p in err.problems]) from None
 
 
 def plan(resolved: Resolved, tables: Tables, panel: PanelBase) -> PanelPlan:
