@@ -1,0 +1,33 @@
+"""Fuzzing the spec loader and ``check`` with Hypothesis: whatever the spec holds, figspec
+either accepts it or reports user errors (exit 2); no other exception escapes. A fixed number
+of examples here; bench/fuzz_check.py runs the same strategies for minutes."""
+
+from __future__ import annotations
+
+import warnings
+
+from hypothesis import HealthCheck, given, settings
+
+from figspec.errors import FigspecWarning, UserError
+from spec_fuzzing import specs
+
+
+def check_text(text: str, folder) -> None:
+    """``check`` of a spec given as text; a :class:`UserError` is the promised outcome."""
+    from figspec import pipeline
+
+    path = folder / "fuzzed.toml"
+    path.write_text(text, encoding="utf-8", errors="surrogatepass")
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", FigspecWarning)
+        try:
+            pipeline.check(path)
+        except UserError as err:
+            assert err.problems and all(p.format() for p in err.problems)
+
+
+@settings(max_examples=150, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture,
+                                                                  HealthCheck.too_slow])
+@given(text=specs)
+def test_check_never_fails_with_an_internal_error(text, tmp_path):
+    check_text(text, tmp_path)
