@@ -130,9 +130,8 @@ def run(argv: Sequence[str] | None = None) -> int:
                 for problem in err.problems:
                     print(problem.format(), file=sys.stderr)
             finally:
-                for warning in caught:
-                    if issubclass(warning.category, FigspecWarning):
-                        print(f"{path}: warning: {warning.message}", file=sys.stderr)
+                for message in dict.fromkeys(str(w.message) for w in caught if issubclass(w.category, FigspecWarning)):
+                    print(f"{path}: warning: {message}", file=sys.stderr)
                 caught.clear()
     return EXIT_USER if failed else EXIT_OK
 

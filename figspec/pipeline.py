@@ -37,8 +37,15 @@ class Rendered:
 
 
 def check(path: str | Path, style: str | None = None) -> Resolved:
-    """Validate a spec and resolve its data without drawing anything."""
-    return resolve(load(path), style)
+    """Validate a spec and resolve its data without drawing anything. A style font that is not
+    installed is a warning here already (matplotlib is imported for that only when the style
+    names a font other than the one it ships)."""
+    resolved = resolve(load(path), style)
+    if resolved.style.font.family != "DejaVu Sans":
+        from figspec.draw.context import check_fonts
+
+        check_fonts(resolved.style)
+    return resolved
 
 
 def notes(resolved: Resolved) -> list[str]:

@@ -55,10 +55,11 @@ def index_key_lines(text: str) -> dict[Loc, int]:
     array_counts: dict[tuple[str, ...], int] = {}
     table: Loc = ()
     depth = 0  # open brackets of a multi-line value
+    array: dict = {}  # the multi-line array being read: its key path, next element, whether one may start
     for number, raw in enumerate(text.splitlines(), start=1):
         code = _code_part(raw).strip()
         if depth > 0:
-            depth += code.count("[") - code.count("]")
+            depth = _elements(code, depth, array, lines, number)
             continue
         if not code:
             continue
@@ -78,8 +79,32 @@ def index_key_lines(text: str) -> dict[Loc, int]:
             key_text = raw.strip()[: len(code.split("=", 1)[0])]
             lines.setdefault(table + _split_key(key_text), number)
             value = code.split("=", 1)[1]
-            depth = max(0, value.count("[") - value.count("]"))
+            array = {"loc": table + _split_key(key_text), "index": 0, "start": False}
+            depth = _elements(value, 0, array, lines, number)
     return lines
+
+
+def _elements(code: str, depth: int, array: dict, lines: dict[Loc, int], number: int) -> int:
+    """Read one line of a value: track bracket depth and note the line of every element of the
+    outer array that starts on it (``window_ms[1]`` on its own line of a multi-line array)."""
+    for ch in code:
+        outer = depth == 1 and array.get("outer") == "["
+        if ch in "[{":
+            if outer and array["start"]:
+                lines.setdefault(array["loc"] + (array["index"],), number)
+                array["start"] = False
+            depth += 1
+            if depth == 1:
+                array["outer"], array["start"] = ch, ch == "["
+        elif ch in "]}":
+            depth -= 1
+        elif ch == "," and outer:
+            array["index"] += 1
+            array["start"] = True
+        elif outer and array["start"] and not ch.isspace():
+            lines.setdefault(array["loc"] + (array["index"],), number)
+            array["start"] = False
+    return max(depth, 0)
 
 
 def _with_indices(path: tuple[str, ...], array_counts: dict[tuple[str, ...], int]) -> Loc:

@@ -44,3 +44,10 @@ def test_unknown_key_falls_back_to_its_table():
     assert line_for(lines, ("panels", 1, "bin_ms")) == 18
     assert line_for(lines, ("sources", "demo", "spike_columns", "time")) == 8
     assert line_for(lines, ("nowhere",)) is None
+
+
+def test_elements_of_a_multi_line_array_have_their_own_lines():
+    text = 'a = [\n  -50,\n  "150",\n]\nb = [1, 2]\nc = [\n [1, 2],\n [3, 4] ]\nd = { x = [1,\n 2] }\ne = 3\n'
+    lines = index_key_lines(text)
+    assert lines[("a", 0)] == 2 and lines[("a", 1)] == 3 and lines[("c", 1)] == 8
+    assert lines[("b", 1)] == 5 and ("d", 0) not in lines and lines[("e",)] == 11
