@@ -10,7 +10,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
-from matplotlib.collections import LineCollection
+from figspec.draw.raster import tick_positions
 
 from figspec import pipeline
 from figspec.spec.style import BUILTIN_STYLES
@@ -94,8 +94,8 @@ def test_source_data_equals_what_is_drawn(two_renders):
         fig = draw_now(pipeline.draw(resolved, pipeline.compute(resolved)))
     raster_axes, rate_axes = fig.subfigs[0].axes, fig.subfigs[1].axes
     for ax_r, ax_h, level in zip(raster_axes, rate_axes, range(80, -1, -10)):
-        [lines] = [c for c in ax_r.collections if isinstance(c, LineCollection)]
-        drawn_x = np.sort([s[0, 0] for s in lines.get_segments()])
+        [ticks] = [p for p in ax_r.patches if p.get_gid() == "raster"]
+        drawn_x = np.sort(tick_positions(ticks))
         np.testing.assert_allclose(drawn_x, np.sort(spikes[spikes["level"] == level]["time_ms"].dropna()), rtol=1e-9)
         [stairs] = [p for p in ax_h.patches if p.get_gid() == "rate"]
         np.testing.assert_allclose(stairs.get_data().values, rate[rate["level"] == level]["rate"], rtol=1e-9)

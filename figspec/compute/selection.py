@@ -72,14 +72,21 @@ def select(rec: Recording, unit: str, window_ms: tuple[float, float],
     row = np.arange(pairs.size) - np.repeat(first, counts)
     trials = pd.DataFrame({"pair": pairs, "trial": rec.trials["trial"].to_numpy()[rec.pair_trial[pairs]],
                            "level": level, "row": row})
-    # spikes of the selected pairs: map pair -> selected row (-1 for pairs not selected)
-    row_of_pair = np.full(rec.n_pairs, -1, dtype=np.int64)
-    row_of_pair[pairs] = np.arange(pairs.size)
-    spike_trial = row_of_pair[rec.spike_pair()]
+    # A unit's pairs are contiguous (pairs are ordered by unit), so its spikes are one slice of
+    # the recording: only that slice is read, never every spike of every unit.
     lo, hi = rec.to_ticks(window_ms)
-    inside = (spike_trial >= 0) & (rec.ticks >= lo) & (rec.ticks < hi)
+    if pairs.size == 0:
+        empty = np.empty(0, dtype=np.int64)
+        return Selection(trials=trials, levels=values, trial_level=inverse.reshape(-1), n_trials=counts,
+                         spike_trial=empty, ticks=empty, ticks_per_ms=rec.ticks_per_ms)
+    first, last = int(pairs.min()), int(pairs.max()) + 1
+    row_of_pair = np.full(last - first, -1, dtype=np.int64)          # pair -> selected row (-1: not selected)
+    row_of_pair[pairs - first] = np.arange(pairs.size)
+    ticks = rec.ticks[rec.offsets[first]:rec.offsets[last]]
+    spike_trial = np.repeat(row_of_pair, np.diff(rec.offsets[first:last + 1]))
+    inside = (spike_trial >= 0) & (ticks >= lo) & (ticks < hi)
     return Selection(trials=trials, levels=values, trial_level=inverse.reshape(-1), n_trials=counts,
-                     spike_trial=spike_trial[inside], ticks=rec.ticks[inside], ticks_per_ms=rec.ticks_per_ms)
+                     spike_trial=spike_trial[inside], ticks=ticks[inside], ticks_per_ms=rec.ticks_per_ms)
 
 
 def spanning(*windows: tuple[float, float]) -> tuple[float, float]:

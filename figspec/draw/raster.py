@@ -1,4 +1,4 @@
-"""Raster rows: one line collection per axes, one tick per spike, one line per trial."""
+"""Raster rows: one compound path per axes, one tick per spike, one line per trial."""
 
 from __future__ import annotations
 
@@ -17,7 +17,7 @@ def draw(axes: dict, table: pd.DataFrame, panel: RasterPanel, ctx: DrawContext) 
     Trial 0 is the top line. Every trial presented has a line, so trials with no spike stay
     visible as empty lines and the y extent is the number of trials.
     """
-    from matplotlib.collections import LineCollection
+    from matplotlib.patches import PathPatch
 
     style = ctx.style
     half = style.raster.tick_height / 2
@@ -29,18 +29,32 @@ def draw(axes: dict, table: pd.DataFrame, panel: RasterPanel, ctx: DrawContext) 
         times = table["time_ms"].to_numpy()[lo:hi]
         n_trials = int(table["n_trials"].iloc[lo])
         spikes = ~np.isnan(times)
-        x, y = times[spikes], rows[spikes].astype(float)
-        segments = np.empty((x.size, 2, 2))
-        segments[:, 0, 0] = segments[:, 1, 0] = x
-        segments[:, 0, 1] = y - half
-        segments[:, 1, 1] = y + half
-        ax.add_collection(LineCollection(segments, colors=style.raster.colour,
-                                         linewidths=style.raster.tick_width_pt, gid="raster"),
-                          autolim=False)
+        ax.add_patch(PathPatch(tick_path(times[spikes], rows[spikes].astype(float), half), fill=False,
+                               edgecolor=style.raster.colour, linewidth=style.raster.tick_width_pt,
+                               capstyle="butt", gid="raster"))
         ax.set_ylim(n_trials - 0.5, -0.5)
         ax.set_xlim(*panel.window_ms)
         ax.set_yticks([])
         ax.spines["left"].set_visible(False)
+
+
+def tick_path(x: np.ndarray, y: np.ndarray, half: float):
+    """One compound path of vertical ticks (a MOVETO and a LINETO per spike): a single artist
+    that PDF and SVG write as one path, however many spikes."""
+    from matplotlib.path import Path
+
+    vertices = np.empty((2 * x.size, 2))
+    vertices[0::2, 0] = vertices[1::2, 0] = x
+    vertices[0::2, 1] = y - half
+    vertices[1::2, 1] = y + half
+    codes = np.full(2 * x.size, Path.LINETO, dtype=Path.code_type)
+    codes[0::2] = Path.MOVETO
+    return Path(vertices, codes)
+
+
+def tick_positions(patch) -> np.ndarray:
+    """The x of every tick of a raster patch drawn by :func:`tick_path` (for tests and checks)."""
+    return patch.get_path().vertices[0::2, 0]
 
 
 def labels(panel: RasterPanel, table: pd.DataFrame, levels: LevelSpec) -> Labels:

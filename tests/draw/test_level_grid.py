@@ -2,7 +2,7 @@
 
 import numpy as np
 import pytest
-from matplotlib.collections import LineCollection
+from figspec.draw.raster import tick_positions
 
 from figspec import pipeline
 from figspec.draw.context import styled
@@ -36,19 +36,21 @@ def test_one_row_per_level_high_at_top(drawn):
     assert all(r[0].get_ylabel().endswith("n = 30") for r in rows)
 
 
-def test_raster_is_one_collection_per_row_with_one_segment_per_spike(drawn):
+def test_raster_is_one_compound_path_per_row_with_one_tick_per_spike(drawn):
+    from matplotlib.path import Path
+
     resolved, tables, fig = drawn
     raster = tables.panels["spikes"]
     for row in grid(fig):
         level = float(row[0].get_ylabel().split(" ")[0])
-        collections = [c for c in row[0].collections if isinstance(c, LineCollection)]
-        assert len(collections) == 1
-        segments = collections[0].get_segments()
+        [patch] = [p for p in row[0].patches if p.get_gid() == "raster"]
+        path = patch.get_path()
         n_spikes = raster[(raster["level"] == level)]["time_ms"].notna().sum()
-        assert len(segments) == n_spikes
-        xs = np.sort([s[0, 0] for s in segments])
+        assert len(path.vertices) == 2 * n_spikes
+        assert (path.codes[0::2] == Path.MOVETO).all() and (path.codes[1::2] == Path.LINETO).all()
         expected = np.sort(raster[(raster["level"] == level)]["time_ms"].dropna().to_numpy())
-        np.testing.assert_array_equal(xs, expected)
+        np.testing.assert_array_equal(np.sort(tick_positions(patch)), expected)
+        assert not row[0].collections or all(c.get_gid() != "raster" for c in row[0].collections)
 
 
 def test_raster_rows_span_all_trials_presented(drawn):
