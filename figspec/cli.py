@@ -57,6 +57,12 @@ def _parser() -> argparse.ArgumentParser:
     render.add_argument("--format", dest="formats", metavar="LIST",
                         help="comma-separated formats, overriding the specs' (svg,pdf,png)")
     render.add_argument("--style", metavar="NAME", help="render in this style instead of the specs' own")
+    render.add_argument("--jobs", "-j", type=int, metavar="N", default=None,
+                        help="render N specs at once in worker processes (default: the number of cores)")
+    render.add_argument("--force", action="store_true",
+                        help="render every spec, also those whose outputs are up to date")
+    render.add_argument("--scheduler", metavar="ADDRESS",
+                        help="run the renders on this Dask distributed scheduler (needs figspec[cluster])")
     check = sub.add_parser("check", help="validate specs and their data; draw nothing")
     check.add_argument("specs", nargs="+", metavar="SPEC")
     check.add_argument("--style", metavar="NAME", help="check in this style instead of the specs' own")
@@ -91,6 +97,8 @@ def run(argv: Sequence[str] | None = None) -> int:
 
     if args.command in ("snapshot", "compare", "diff"):
         return _review(args)
+    if args.command == "render":
+        return _render(args)
     failed = False
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", FigspecWarning)
@@ -111,10 +119,7 @@ def run(argv: Sequence[str] | None = None) -> int:
                     from figspec.steps.journal import profile as named_profile
 
                     named_profile(resolved, None)             # a journal named in the spec must exist
-                if args.command == "render":
-                    result = pipeline.render(path, args.outdir, formats, resolved=resolved, profile=profile)
-                    print(f"{path}: wrote {len(result.files)} files to {args.outdir}")
-                elif args.journal or profile:
+                if args.journal or profile:
                     result = pipeline.journal_check(resolved, profile)
                 else:
                     result = None
@@ -134,6 +139,39 @@ def run(argv: Sequence[str] | None = None) -> int:
                     print(f"{path}: warning: {message}", file=sys.stderr)
                 caught.clear()
     return EXIT_USER if failed else EXIT_OK
+
+
+def _render(args: argparse.Namespace) -> int:
+    """``render``: build every spec (skipping those up to date), report each as it finishes,
+    close with a table when there were several; the exit status is the worst of all."""
+    from figspec.build import BuildOptions, Progress, build, default_jobs, summary_table, worst
+
+    try:
+        files = _spec_files(args.specs)
+        formats = _formats(args.formats)
+    except UserError as err:
+        for problem in err.problems:
+            print(problem.format(), file=sys.stderr)
+        return EXIT_USER
+    options = BuildOptions(args.outdir, tuple(formats) if formats else None, args.style, args.profile,
+                           args.strict, args.force)
+    jobs = args.jobs if args.jobs is not None else default_jobs()
+    runner = None
+    if args.scheduler:
+        from functools import partial
+
+        from figspec.cluster import run_on_cluster
+
+        runner = partial(run_on_cluster, args.scheduler)
+    try:
+        results = build(files, options, jobs, runner, Progress(args.outdir))
+    except UserError as err:                  # e.g. no cluster extra, or no scheduler at the address
+        for problem in err.problems:
+            print(problem.format(), file=sys.stderr)
+        return EXIT_USER
+    if len(results) > 1:
+        print(summary_table(results))
+    return worst([r.exit for r in results])
 
 
 def _review(args: argparse.Namespace) -> int:

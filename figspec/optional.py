@@ -11,6 +11,7 @@ from figspec.errors import DataError, Loc, Problem
 EXTRAS: dict[str, str] = {   # importable module -> the extra of pyproject.toml that installs it
     "pyarrow.parquet": "parquet",
     "pynwb": "nwb",
+    "distributed": "cluster",
 }
 
 

@@ -45,13 +45,22 @@ def parameters(spec: Any, panels: Iterable[Any], style: Any) -> dict:
     """Every parameter the figure was made with (the spec as written, each panel as resolved:
     defaults and automatic choices filled in, the style), and the versions that shape the
     output bytes."""
-    import matplotlib
-    import numpy
-
     return {
         "spec": spec.model_dump(mode="json"),
         "panels_resolved": [p.model_dump(mode="json") for p in panels],
         "style": style.model_dump(mode="json"),
-        "versions": {"figspec": __version__, "matplotlib": matplotlib.__version__,
-                     "numpy": numpy.__version__, "pandas": pd.__version__},
+        "versions": versions(),
     }
+
+
+def versions() -> dict[str, str]:
+    """figspec's version and those of the libraries that shape the output bytes (read from the
+    installed packages' metadata, so nothing is imported for it)."""
+    from importlib.metadata import version
+
+    return {"figspec": __version__, **{name: version(name) for name in ("matplotlib", "numpy", "pandas", "scipy")}}
+
+
+def build_inputs(inputs: list[dict]) -> dict[str, str]:
+    """``{role: sha256}`` of a figure's inputs: the part of the build record incremental builds compare."""
+    return {i["role"]: i["sha256"] for i in inputs}

@@ -29,10 +29,12 @@ def legend_text(title: str, sentences: Iterable[str]) -> str:
     return "\n".join([f"**{title or 'Figure'}.**", *sentences]) + "\n"
 
 
-def manifest(inputs: list[dict], outputs: dict[str, bytes], parameters: dict[str, Any]) -> bytes:
-    """The manifest as stable JSON bytes: inputs and outputs with sizes and sha256, and the
-    resolved parameters."""
+def manifest(inputs: list[dict], outputs: dict[str, bytes], parameters: dict[str, Any],
+             build: dict[str, Any] | None = None) -> bytes:
+    """The manifest as stable JSON bytes: inputs and outputs with sizes and sha256, the
+    resolved parameters, and the build record incremental builds compare."""
     body = {
+        "build": build or {},
         "inputs": inputs,
         "outputs": [{"path": name, "bytes": len(data), "sha256": sha256(data)} for name, data in sorted(outputs.items())],
         "parameters": parameters,

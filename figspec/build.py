@@ -1,0 +1,238 @@
+"""Build many specs: decide what is up to date, render the rest (in worker processes, or on a
+Dask cluster), and report one line per spec as it finishes and a closing table.
+
+A spec is up to date when its manifest's build record (the sha256 of the spec, every data and
+style file it reads, the versions of figspec and the libraries that shape the bytes, and the
+formats) equals today's, and every output the manifest lists is still there with its hash.
+Outputs are byte-identical however many workers render them: each spec is rendered by one
+process from its own files only.
+"""
+
+from __future__ import annotations
+
+import os
+import sys
+import time
+import traceback
+import warnings
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Callable, Iterator, Sequence
+
+EXIT_OK, EXIT_INTERNAL, EXIT_USER = 0, 1, 2
+
+
+@dataclass
+class SpecResult:
+    """How one spec's build ended (everything the summary and the exit status need)."""
+
+    spec: str
+    status: str = "rendered"            # rendered | skipped | failed
+    reason: str = ""                    # why it was rebuilt, or why it was skipped
+    seconds: float = 0.0
+    files: int = 0
+    errors: list[str] = field(default_factory=list)
+    warnings: list[str] = field(default_factory=list)
+    notes: list[str] = field(default_factory=list)
+    findings: list[str] = field(default_factory=list)
+    exit: int = EXIT_OK
+
+
+Runner = Callable[[dict, "BuildOptions"], Iterator["SpecResult"]]
+
+
+@dataclass(frozen=True)
+class BuildOptions:
+    outdir: str
+    formats: tuple[str, ...] | None = None
+    style: str | None = None
+    profile: str | None = None
+    strict: bool = False
+    force: bool = False
+
+
+def build_record(spec_path: Path, formats: Sequence[str] | None, style: str | None) -> dict:
+    """What decides a spec's outputs, without loading its data: input hashes, versions, formats."""
+    from figspec.output.provenance import input_files, versions
+    from figspec.spec.loader import load_spec
+    from figspec.spec.style_files import resolve_style
+
+    spec = load_spec(spec_path)
+    name, folder = (style, Path.cwd()) if style else (spec.model.figure.style, spec.folder)
+    style_sources = resolve_style(name, folder, spec.model.style, spec.path, spec.text).sources
+    files = [("spec", spec.path)]
+    for source_name, src in spec.model.sources.items():
+        files += [(f"data:{source_name}:{role}", spec.folder / path) for role, path in src.files().items()]
+    files += [(f"style:{s.path.stem}", s.path) for s in style_sources if s.prefix == ()]
+    inputs = {i["role"]: i["sha256"] for i in input_files([(r, p) for r, p in files if Path(p).is_file()])}
+    return {"inputs": inputs, "versions": versions(), "formats": sorted(formats or spec.model.figure.formats)}
+
+
+def up_to_date(spec_path: Path, options: BuildOptions) -> tuple[bool, str]:
+    """(whether the spec's outputs in ``options.outdir`` are current, the reason)."""
+    import json
+
+    from figspec.errors import UserError
+    from figspec.output.names import output_stem
+    from figspec.output.output_set import set_state
+
+    if options.force:
+        return False, "--force"
+    stem = output_stem(spec_path)
+    manifest = Path(options.outdir) / f"{stem}_data" / "manifest.json"
+    if not manifest.is_file():
+        return False, "no earlier outputs"
+    try:
+        current = build_record(spec_path, options.formats, options.style)
+    except (UserError, OSError):
+        return False, "the spec does not load"            # the render says why
+    try:
+        stored = json.loads(manifest.read_text()).get("build", {})
+    except ValueError:
+        return False, "the manifest is unreadable"
+    if stored.get("versions") != current["versions"]:
+        return False, "another figspec or library version"
+    if stored.get("formats") != current["formats"]:
+        return False, "other formats"
+    old, new = stored.get("inputs", {}), current["inputs"]
+    changed = sorted(role for role in set(old) | set(new) if old.get(role) != new.get(role))
+    if changed:
+        return False, "changed: " + ", ".join(changed)
+    if set_state(Path(options.outdir), stem) != "complete":
+        return False, "outputs changed or missing"
+    return True, "unchanged"
+
+
+def render_one(spec: str, options: BuildOptions, reason: str = "") -> SpecResult:
+    """Render (and journal-check) one spec; ``reason`` says why it is rebuilt. Never raises:
+    a user error or an internal error is reported in the result."""
+    from figspec import pipeline
+    from figspec.errors import FigspecWarning, UserError
+
+    start = time.perf_counter()
+    result = SpecResult(spec, reason=reason)
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", FigspecWarning)
+        try:
+            resolved = pipeline.check(spec, options.style)
+            result.notes = [f"note: {n}" for n in pipeline.notes(resolved)]
+            rendered = pipeline.render(spec, options.outdir, options.formats, resolved=resolved,
+                                       profile=options.profile)
+            result.files = len(rendered.files)
+            if rendered.profile is not None:
+                result.findings = [f"{spec}: {f.format(rendered.profile)}" for f in rendered.findings]
+                count = len(rendered.findings)
+                result.notes.append(f"{spec}: journal check {rendered.profile.name}: "
+                                    f"{count} finding{'' if count == 1 else 's'}")
+                if options.strict and rendered.findings:
+                    result.exit = EXIT_USER
+        except UserError as err:
+            result.status, result.exit = "failed", EXIT_USER
+            result.errors = [p.format() for p in err.problems]
+        except Exception:                                 # a bug: keep the traceback for the report
+            result.status, result.exit = "failed", EXIT_INTERNAL
+            result.errors = [f"{spec}: internal error (please report it):\n{traceback.format_exc()}"]
+        finally:
+            result.warnings = list(dict.fromkeys(str(w.message) for w in caught
+                                                 if issubclass(w.category, FigspecWarning)))
+            result.seconds = time.perf_counter() - start
+    return result
+
+
+def worst(codes: Sequence[int]) -> int:
+    """The exit status of a build: an internal error over a user error over success."""
+    return EXIT_INTERNAL if EXIT_INTERNAL in codes else (EXIT_USER if EXIT_USER in codes else EXIT_OK)
+
+
+def build(specs: Sequence[Path], options: BuildOptions, jobs: int = 1, runner: Runner | None = None,
+          report: Callable[[SpecResult, int, int], None] | None = None) -> list[SpecResult]:
+    """Build ``specs``: one by one (``jobs = 1``), in ``jobs`` worker processes, or with
+    ``runner`` (e.g. :func:`figspec.cluster.run_on_cluster` bound to a scheduler address), which
+    takes {spec: why it is rebuilt} and the options and yields results. ``report`` is called as
+    each spec finishes."""
+    names = [str(s) for s in specs]
+    done: dict[str, SpecResult] = {}
+
+    def finished(result: SpecResult) -> None:
+        done[result.spec] = result
+        if report is not None:
+            report(result, len(done), len(names))
+
+    stale: dict[str, str] = {}                     # spec -> why it is rebuilt (decided here, cheaply)
+    for name in names:
+        current, why = up_to_date(Path(name), options)
+        if current:
+            finished(SpecResult(name, "skipped", why))
+        else:
+            stale[name] = why
+    if runner is not None and stale:
+        for result in runner(stale, options):
+            finished(result)
+    elif jobs <= 1 or len(stale) <= 1:
+        for name, why in stale.items():
+            finished(render_one(name, options, why))
+    else:
+        import multiprocessing
+        from concurrent.futures import ProcessPoolExecutor, as_completed
+
+        context = multiprocessing.get_context("spawn")      # a fresh interpreter: no state shared
+        with ProcessPoolExecutor(max_workers=min(jobs, len(stale)), mp_context=context) as pool:
+            futures = [pool.submit(render_one, name, options, why) for name, why in stale.items()]
+            for future in as_completed(futures):
+                finished(future.result())
+    return [done[name] for name in names]
+
+
+def default_jobs() -> int:
+    """Worker processes by default: the cores this process may use."""
+    try:
+        return max(1, len(os.sched_getaffinity(0)))
+    except AttributeError:
+        return os.cpu_count() or 1
+
+
+class Progress:
+    """Lines as specs finish: a bar redrawn in place on a terminal, plain flushed lines when the
+    output is piped (a log or CI)."""
+
+    def __init__(self, outdir: str, out=None, err=None):
+        self.outdir = outdir
+        self.out, self.err = out or sys.stdout, err or sys.stderr
+        self.tty = hasattr(self.err, "isatty") and self.err.isatty()
+
+    def __call__(self, result: SpecResult, count: int, total: int) -> None:
+        for line in result.errors + result.findings + [n for n in result.notes if n.startswith("note:")]:
+            self._line(self.err, line)
+        for line in result.warnings:
+            self._line(self.err, f"{result.spec}: warning: {line}")
+        what = {"rendered": f"wrote {result.files} files to {self.outdir} in {result.seconds:.1f} s",
+                "skipped": f"skipped, {result.reason}", "failed": "failed"}[result.status]
+        if result.status == "rendered" and result.reason:
+            what += f" ({result.reason})"
+        self._line(self.out, f"{result.spec}: {what}" + (f"  [{count}/{total}]" if total > 1 else ""))
+        for line in result.notes:
+            if not line.startswith("note:"):
+                self._line(self.out, line)
+        if self.tty and count < total:
+            filled = round(30 * count / total)
+            self.err.write(f"\r[{'#' * filled}{'.' * (30 - filled)}] {count}/{total} specs")
+            self.err.flush()
+
+    def _line(self, stream, text: str) -> None:
+        if self.tty:
+            self.err.write("\r\033[K")
+            self.err.flush()
+        stream.write(text + "\n")
+        stream.flush()
+
+
+def summary_table(results: Sequence[SpecResult]) -> str:
+    """The closing table: spec, status, seconds, files and warnings of each spec."""
+    rows = [("spec", "status", "seconds", "files", "warnings")]
+    rows += [(r.spec, r.status, f"{r.seconds:.1f}", str(r.files), str(len(r.warnings))) for r in results]
+    widths = [max(len(row[i]) for row in rows) for i in range(5)]
+    lines = ["  ".join(cell.ljust(w) if i < 2 else cell.rjust(w) for i, (cell, w) in enumerate(zip(row, widths)))
+             for row in rows]
+    counts = {s: sum(r.status == s for r in results) for s in ("rendered", "skipped", "failed")}
+    lines.append(", ".join(f"{n} {s}" for s, n in counts.items()) + f"; {sum(r.seconds for r in results):.1f} s of work")
+    return "\n".join(lines)
