@@ -39,6 +39,11 @@ def no_notes(panel) -> list[str]:
     return []
 
 
+def any_page(rec, panel, box):
+    """Default page fit: the panel is drawn the same whatever the page's size and resolution."""
+    return panel
+
+
 def no_limits(panel, tables) -> dict:
     """Default data limits: nothing to share."""
     return {}
@@ -53,6 +58,7 @@ class PanelKind:
     layout: Literal["rows", "single"]
     limits: Callable = no_limits
     resolve: Callable = unchanged
+    fit_page: Callable = any_page
     check: Callable = no_problems
     notes: Callable = no_notes
     statistics: Callable = trial_rows
@@ -62,7 +68,7 @@ class PanelKind:
 
 PANEL_KINDS: dict[str, PanelKind] = {
     "raster": PanelKind(RasterPanel, raster.compute, raster_art.draw, raster_art.labels, "rows",
-                        limits=raster_art.limits, legend=raster.legend),
+                        limits=raster_art.limits, legend=raster.legend, fit_page=raster.fit_page),
     "psth": PanelKind(PsthPanel, psth.compute, psth_art.draw, psth_art.labels, "rows", limits=psth_art.limits,
                       resolve=psth.resolve, notes=psth.notes, statistics=psth.statistics, legend=psth.legend),
     "level_response": PanelKind(LevelResponsePanel, level_response.compute, level_response_art.draw,

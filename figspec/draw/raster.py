@@ -19,6 +19,9 @@ def draw(axes: dict, table: pd.DataFrame, panel: RasterPanel, ctx: DrawContext) 
     """
     from matplotlib.patches import PathPatch
 
+    if panel.draw_as == "density":
+        draw_density(axes, table, panel, ctx)
+        return
     style = ctx.style
     half = style.raster.tick_height / 2
     groups = table[panel.repeat].to_numpy()
@@ -36,6 +39,53 @@ def draw(axes: dict, table: pd.DataFrame, panel: RasterPanel, ctx: DrawContext) 
         ax.set_xlim(*panel.window_ms)
         ax.set_yticks([])
         ax.spines["left"].set_visible(False)
+
+
+def cell_rates(table: pd.DataFrame) -> np.ndarray:
+    """Each density cell's spikes per trial and second: what its grey level shows."""
+    lines = (table["row_stop"] - table["row_start"]).to_numpy(dtype=float)
+    seconds = (table["bin_stop_ms"] - table["bin_start_ms"]).to_numpy(dtype=float) / 1000.0
+    return table["count"].to_numpy(dtype=float) / (lines * seconds)
+
+
+def draw_density(axes: dict, table: pd.DataFrame, panel: RasterPanel, ctx: DrawContext) -> None:
+    """Each level as an image of spikes per trial and second in cells of trials x time, on one
+    grey scale for every level of the panel (white: none; black: the panel's highest cell), with
+    a key. The image is embedded as it is in PDF and SVG, so every format shows the same cells;
+    its grey is linear in the rate, so mean ink over a window follows the mean rate."""
+    import matplotlib as mpl
+
+    n_time, n_groups = panel.density_bins
+    w0, w1 = panel.window_ms
+    rates = cell_rates(table)
+    top = float(rates.max()) if rates.size and rates.max() > 0 else 1.0
+    norm = mpl.colors.Normalize(0.0, top)
+    # white to the raster colour, linear in each channel: ink is proportional to the rate
+    ink = mpl.colors.LinearSegmentedColormap.from_list("figspec_ink", ["#ffffff", ctx.style.raster.colour])
+    groups = table[panel.repeat].to_numpy()
+    bounds = np.flatnonzero(np.r_[True, groups[1:] != groups[:-1], True])
+    image = None
+    for lo, hi in zip(bounds[:-1], bounds[1:]):
+        ax = axes[group_key(panel.repeat, groups[lo])]
+        n = int(table["n_trials"].iloc[lo])
+        k = min(n_groups, n)
+        grid = np.zeros((k, n_time))
+        gi = table["row_start"].to_numpy()[lo:hi] * k // n
+        ti = np.rint((table["bin_start_ms"].to_numpy()[lo:hi] - w0) / (w1 - w0) * n_time).astype(int)
+        grid[gi, np.clip(ti, 0, n_time - 1)] = rates[lo:hi]
+        image = ax.imshow(grid, cmap=ink, norm=norm, extent=(w0, w1, n - 0.5, -0.5), aspect="auto",
+                          interpolation="none", origin="upper", gid="raster_density", zorder=-1)  # shading over it
+        ax.set_ylim(n - 0.5, -0.5)
+        ax.set_xlim(w0, w1)
+        ax.set_yticks([])
+        ax.spines["left"].set_visible(False)
+    if image is not None:
+        first = next(iter(axes.values()))
+        bar = first.get_figure(root=False).colorbar(image, ax=list(axes.values()), location="right", shrink=0.5,
+                                                    aspect=30, pad=0.02)
+        bar.set_label("Spikes/s per cell", fontsize=ctx.style.font.tick_pt)
+        bar.ax.tick_params(labelsize=ctx.style.font.tick_pt)
+        bar.ax.set_gid("raster_density_key")
 
 
 def tick_path(x: np.ndarray, y: np.ndarray, half: float):

@@ -36,6 +36,20 @@ class LayoutSpec(Frozen):
         return self
 
 
+def panel_box_mm(width_mm: float, height_mm: float, layout: "LayoutSpec | None", panels: list,
+                 index: int) -> tuple[float, float]:
+    """The width and height (mm) of the grid cells panel ``index`` spans: the page share the
+    layout gives it (without a layout, panels sit side by side in one row)."""
+    if layout is None:
+        return width_mm / len(panels), height_mm
+    widths = layout.widths or [1.0] * layout.columns
+    heights = layout.heights or [1.0] * layout.rows
+    panel = panels[index]
+    (row, col), (h, w) = panel.cell or (1, 1), panel.span
+    return (width_mm * sum(widths[col - 1:col - 1 + w]) / sum(widths),
+            height_mm * sum(heights[row - 1:row - 1 + h]) / sum(heights))
+
+
 def reading_order(layout: LayoutSpec | None, panels: list) -> list[int]:
     """Indices of ``panels`` in reading order: by grid cell (row, then column); without a
     layout, the order of the spec (one column each)."""

@@ -11,13 +11,22 @@ from typing import Annotated, Literal, Union
 
 from pydantic import Field, ValidationInfo, field_validator, model_validator
 
-from figspec.spec.fields import MAX_BINS, Magnitude, PositiveMs, Text, WindowMs
+from figspec.spec.fields import MAX_BINS, Magnitude, PositiveMs, Seed, Text, WindowMs
 from figspec.spec.panel_base import PanelBase, Probability, Step, SummaryPanel, TimePanel
 
 class RasterPanel(TimePanel):
-    """``kind = "raster"``: one tick per spike, one line per trial presented."""
+    """``kind = "raster"``: one tick per spike, one line per trial presented.
+
+    ``draw_as = "density"`` draws each level as an image of spike counts per cell (trials x
+    time) instead, for rasters too dense for ticks to show; ``"auto"`` (the default) does so when
+    a tick would be thinner than one pixel at ``png_dpi``. ``trials_shown = N`` draws ticks for a
+    seeded random subset of N trials per level (and says so)."""
 
     kind: Literal["raster"]
+    draw_as: Literal["auto", "ticks", "density"] = "auto"
+    density_bins: tuple[Annotated[int, Field(ge=1, le=4000)], Annotated[int, Field(ge=1, le=4000)]] | None = None
+    trials_shown: Annotated[int, Field(ge=1, le=100_000)] | None = None
+    seed: Seed = 0
 
     @model_validator(mode="after")
     def _no_overlay(self) -> "RasterPanel":
@@ -25,6 +34,10 @@ class RasterPanel(TimePanel):
             raise ValueError("rasters cannot be overlaid: arrange them in rows or columns")
         if self.units is not None and self.repeat != "unit":
             raise ValueError("a raster shows one unit per axes: with units = [...] set repeat = 'unit'")
+        if self.trials_shown is not None and self.draw_as == "density":
+            raise ValueError("trials_shown draws a subset of trials as ticks; a density image shows them all")
+        if self.density_bins is not None and self.draw_as == "ticks":
+            raise ValueError("density_bins is for draw_as = 'density' (or 'auto')")
         return self
 
 

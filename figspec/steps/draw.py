@@ -59,6 +59,10 @@ def _repeats(resolved: Resolved, panel, table, stim) -> tuple[list, list[str]]:
             n = table.groupby("level")["n_trials"].first()
             pooled = table.groupby("level")["n_units"].first()
             text = {g: f"\nn = {int(n[g])} ({int(pooled[g])} units)" for g in groups}
+        elif "n_shown" in table:             # a seeded subset of the trials is drawn
+            n = stim.groupby("level")["n_trials"].first()
+            shown = table.groupby("level")["n_shown"].first()
+            text = {g: f"\nn = {int(shown[g])} of {int(n[g])}" for g in groups}
         else:
             n = stim.groupby("level")["n_trials"].first()
             text = {g: f"\nn = {int(n[g])}" for g in groups}

@@ -16,6 +16,7 @@ from figspec.data.recording import Recording
 from figspec.errors import DataError, Problem, UserError, toml_text
 from figspec.registry import kind_of
 from figspec.spec.fields import MAX_AXES, MAX_PIXELS
+from figspec.spec.layout import panel_box_mm
 from figspec.spec.loader import LoadedSpec
 from figspec.spec.models import source_name
 from figspec.spec.panel_base import PanelBase
@@ -62,6 +63,11 @@ def resolve(spec: LoadedSpec, style: str | None = None, frames: dict | None = No
     problems = figure_limits(spec.model, [(p, rec) for p, rec, _ in done])
     if problems:
         raise spec.error(problems)
+    fig = spec.model.figure
+    done = [(kind_of(p).fit_page(rec, p, (*panel_box_mm(fig.width_mm, fig.height_mm, spec.model.layout,
+                                                        list(spec.model.panels), i),
+                                          fig.png_dpi, resolved_style.style.raster.tick_height)), rec, found)
+            for i, (p, rec, found) in enumerate(done)]
     return Resolved(spec=spec, recordings=recordings, panels=tuple(p for p, _, _ in done),
                     style=resolved_style.style, style_sources=resolved_style.sources,
                     panel_recordings={p.name: rec for p, rec, _ in done})
