@@ -1,17 +1,18 @@
-"""Time rendering a level grid (raster | rate, 9 levels) with figspec against a hand-written baseline.
+"""Time whole commands that draw a level grid (raster | rate, 9 levels) from the same CSV files:
+``figspec render`` against the usual hand-written loop (bench/hand_loop.py) and a minimal
+compound-path script (bench/compound_path.py), for PNG and PDF, a short (-50..150 ms) and a
+long (-200..400 ms) window, at several trials per level. Each command runs as a user runs it
+(a fresh process: imports and file writing included), alternating, several times; medians and
+ratios are printed.
 
-Both start from the same CSV files on disk and end with a PNG of the same size and resolution.
-The baseline is written the way such scripts usually are: a loop over levels and trials with one
-``vlines`` call per trial and one ``hist`` call per level. Each is run several times in this process,
-alternating, and the medians and their ratio are printed.
-
-    python bench/level_grid.py [--trials 400 1600] [--repeats 5]
+    python bench/level_grid.py [--trials 400 1600 6400] [--repeats 3] [--formats png pdf]
 """
-
 from __future__ import annotations
 
 import argparse
 import statistics
+import subprocess
+import sys
 import tempfile
 import time
 from pathlib import Path
@@ -20,7 +21,7 @@ import numpy as np
 import pandas as pd
 
 LEVELS = np.arange(0.0, 81.0, 10.0)
-WINDOW_MS = (-50.0, 150.0)
+WINDOWS = {"short": (-50.0, 150.0), "long": (-200.0, 400.0)}
 BIN_MS = 5.0
 WIDTH_MM, HEIGHT_MM, DPI = 120.0, 150.0, 300
 
@@ -38,6 +39,7 @@ unit = "dB SPL"
 per_trial = true
 [sources.bench]
 spikes = "spikes.csv"
+clock = "session"
 trials = "trials.csv"
 spike_columns = {{ unit = "unit", trial = "trial", time = "time_s" }}
 trial_columns = {{ trial = "trial", level = "level_db", onset = "onset_s", offset = "offset_s" }}
@@ -58,86 +60,66 @@ def make_data(folder: Path, trials_per_level: int, seed: int = 7) -> int:
     rng = np.random.default_rng(seed)
     levels = np.repeat(LEVELS, trials_per_level)
     rng.shuffle(levels)
-    onset = np.arange(levels.size) * 0.5 + 0.2
+    onset = np.arange(levels.size) * 1.0 + 0.3
     trials = pd.DataFrame({"trial": np.arange(levels.size), "level_db": levels,
                            "onset_s": onset, "offset_s": onset + 0.05})
-    n_spont = rng.poisson(20 * 0.3, levels.size)
+    n_spont = rng.poisson(20 * 0.6, levels.size)
     n_evoked = rng.poisson(200 * 0.05 * levels / 80, levels.size)
     trial = np.r_[np.repeat(trials["trial"], n_spont), np.repeat(trials["trial"], n_evoked)]
-    rel = np.r_[rng.uniform(-0.1, 0.2, n_spont.sum()), rng.uniform(0.005, 0.055, n_evoked.sum())]
+    rel = np.r_[rng.uniform(-0.2, 0.4, n_spont.sum()), rng.uniform(0.005, 0.055, n_evoked.sum())]
     spikes = pd.DataFrame({"unit": "b1", "trial": trial, "time_s": onset[trial] + rel})
     spikes.to_csv(folder / "spikes.csv", index=False)
     trials.to_csv(folder / "trials.csv", index=False)
-    (folder / "grid.toml").write_text(SPEC.format(w=WIDTH_MM, h=HEIGHT_MM, dpi=DPI, a=WINDOW_MS[0],
-                                                  b=WINDOW_MS[1], bin=BIN_MS))
     return len(spikes)
 
 
-def run_figspec(folder: Path) -> None:
-    from figspec import pipeline
+def command(tool: str, folder: Path, fmt: str, window: tuple[float, float]) -> list[str]:
+    """The whole command a user runs, imports and file writing included."""
+    if tool == "figspec":
+        return [sys.executable, "-m", "figspec", "render", str(folder / f"grid_{window[0]:g}.toml"), "-o",
+                str(folder / "out"), "--format", fmt, "--force", "--jobs", "1"]
+    script = {"hand loop": "hand_loop.py", "compound path": "compound_path.py"}[tool]
+    return [sys.executable, str(Path(__file__).parent / script), str(folder), "--format", fmt,
+            "--window", str(window[0]), str(window[1])]
 
-    pipeline.render(folder / "grid.toml", folder / "out", ["png"])
 
-
-def run_by_hand(folder: Path) -> None:
-    """The usual hand-written script."""
-    import matplotlib
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-
-    spikes = pd.read_csv(folder / "spikes.csv")
-    trials = pd.read_csv(folder / "trials.csv")
-    levels = sorted(trials["level_db"].unique())[::-1]
-    fig, axes = plt.subplots(len(levels), 2, figsize=(WIDTH_MM / 25.4, HEIGHT_MM / 25.4),
-                             sharex=True, layout="constrained")
-    edges = np.arange(WINDOW_MS[0], WINDOW_MS[1] + BIN_MS, BIN_MS)
-    ymax = 0
-    for r, level in enumerate(levels):
-        level_trials = trials[trials["level_db"] == level]
-        all_times = []
-        for row, (_, trial) in enumerate(level_trials.iterrows()):
-            t = spikes[spikes["trial"] == trial["trial"]]["time_s"].to_numpy()
-            t = (t - trial["onset_s"]) * 1000
-            t = t[(t >= WINDOW_MS[0]) & (t < WINDOW_MS[1])]
-            axes[r, 0].vlines(t, row - 0.4, row + 0.4, color="k", linewidth=0.6)
-            all_times.extend(t)
-        weights = np.full(len(all_times), 1000 / (len(level_trials) * BIN_MS))
-        counts, _, _ = axes[r, 1].hist(all_times, bins=edges, weights=weights, color="0.3")
-        ymax = max(ymax, counts.max())
-        axes[r, 0].axvspan(0, 50, color="tab:blue", alpha=0.1 + 0.3 * level / 80, lw=0)
-        axes[r, 1].axvspan(0, 50, color="tab:blue", alpha=0.1 + 0.3 * level / 80, lw=0)
-        axes[r, 0].set_ylabel(f"{level:g} dB SPL", rotation=0, ha="right")
-    for r in range(len(levels)):
-        axes[r, 1].set_ylim(0, ymax)
-    axes[-1, 0].set_xlabel("Time (ms)")
-    axes[-1, 1].set_xlabel("Time (ms)")
-    fig.savefig(folder / "by_hand.png", dpi=DPI)
-    plt.close(fig)
+def timed(cmd: list[str]) -> float:
+    start = time.perf_counter()
+    subprocess.run(cmd, check=True, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+    return time.perf_counter() - start
 
 
 def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.split("\n")[0])
-    parser.add_argument("--trials", type=int, nargs="+", default=[400, 1600], help="trials per level")
-    parser.add_argument("--repeats", type=int, default=5)
+    parser.add_argument("--trials", type=int, nargs="+", default=[400, 1600, 6400], help="trials per level")
+    parser.add_argument("--repeats", type=int, default=3)
+    parser.add_argument("--formats", nargs="+", default=["png", "pdf"])
+    parser.add_argument("--windows", nargs="+", default=["short", "long"], choices=sorted(WINDOWS))
+    parser.add_argument("--hand-loop-up-to", type=int, default=6400,
+                        help="skip the (slow) hand loop above this many trials per level")
     args = parser.parse_args()
-    print(f"{'trials/level':>12} {'spikes':>9} {'figspec s':>10} {'by hand s':>10} {'ratio':>7}")
+    print(f"{'trials/level':>12} {'window':>7} {'fmt':>4} {'figspec s':>10} {'hand s':>8} {'compound s':>11} "
+          f"{'hand/figspec':>13} {'figspec/compound':>17}", flush=True)
     for n in args.trials:
         with tempfile.TemporaryDirectory() as tmp:
             folder = Path(tmp)
-            n_spikes = make_data(folder, n)
-            run_figspec(folder)          # warm-up: imports, font cache
-            run_by_hand(folder)
-            ours, theirs = [], []
-            for _ in range(args.repeats):
-                start = time.perf_counter()
-                run_figspec(folder)
-                ours.append(time.perf_counter() - start)
-                start = time.perf_counter()
-                run_by_hand(folder)
-                theirs.append(time.perf_counter() - start)
-            a, b = statistics.median(ours), statistics.median(theirs)
-            print(f"{n:>12} {n_spikes:>9} {a:>10.2f} {b:>10.2f} {b / a:>6.1f}x", flush=True)
+            make_data(folder, n)
+            for window_name in args.windows:
+                window = WINDOWS[window_name]
+                (folder / f"grid_{window[0]:g}.toml").write_text(
+                    SPEC.format(w=WIDTH_MM, h=HEIGHT_MM, dpi=DPI, a=window[0], b=window[1], bin=BIN_MS))
+                for fmt in args.formats:
+                    tools = ["figspec", "compound path"] + (["hand loop"] if n <= args.hand_loop_up_to else [])
+                    times = {tool: [] for tool in tools}
+                    for _ in range(args.repeats):               # alternating, so drift hits all alike
+                        for tool in tools:
+                            times[tool].append(timed(command(tool, folder, fmt, window)))
+                    med = {tool: statistics.median(v) for tool, v in times.items()}
+                    hand = med.get("hand loop")
+                    print(f"{n:>12} {window_name:>7} {fmt:>4} {med['figspec']:>10.2f} "
+                          f"{hand if hand else float('nan'):>8.2f} {med['compound path']:>11.2f} "
+                          f"{(hand / med['figspec']) if hand else float('nan'):>12.1f}x "
+                          f"{med['figspec'] / med['compound path']:>16.2f}x", flush=True)
 
 
 if __name__ == "__main__":

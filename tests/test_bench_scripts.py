@@ -9,7 +9,8 @@ from helpers import ROOT
 
 
 @pytest.mark.parametrize("script, args", [("compute_tables.py", ["--spikes", "20000", "--trials", "10", "--repeats", "1"]),
-                                          ("assemble_recording.py", ["--spikes", "20000", "--repeats", "1"])])
+                                          ("assemble_recording.py", ["--spikes", "20000", "--repeats", "1"]),
+                                          ("psth_spikes.py", ["--spikes", "20000", "--repeats", "1", "--no-elephant"])])
 def test_bench_script_runs(script, args, monkeypatch, capsys):
     monkeypatch.setattr(sys, "argv", [script, *args])
     monkeypatch.syspath_prepend(str(ROOT / "bench"))
