@@ -6,21 +6,14 @@ per trial, one ``hist`` per level): the baseline bench/level_grid.py times figsp
 
 from __future__ import annotations
 
-import argparse
-from pathlib import Path
-
 import numpy as np
 import pandas as pd
 
-WIDTH_MM, HEIGHT_MM, DPI, BIN_MS = 120.0, 150.0, 300, 5.0
+from baseline_args import BIN_MS, DPI, HEIGHT_MM, WIDTH_MM, arguments
 
 
 def main() -> None:
-    parser = argparse.ArgumentParser()
-    parser.add_argument("folder", type=Path)
-    parser.add_argument("--format", default="png")
-    parser.add_argument("--window", type=float, nargs=2, default=[-50.0, 150.0])
-    args = parser.parse_args()
+    args = arguments()
     window = args.window
     import matplotlib
 
