@@ -53,7 +53,7 @@ class BuildOptions:
 
 def build_record(spec_path: Path, formats: Sequence[str] | None, style: str | None) -> dict:
     """What decides a spec's outputs, without loading its data: input hashes, versions, formats."""
-    from figspec.output.provenance import input_files, versions
+    from figspec.output.provenance import code_sha256, input_files, versions
     from figspec.spec.loader import load_spec
     from figspec.spec.style_files import resolve_style
 
@@ -65,7 +65,8 @@ def build_record(spec_path: Path, formats: Sequence[str] | None, style: str | No
         files += [(f"data:{source_name}:{role}", spec.folder / path) for role, path in src.files().items()]
     files += [(f"style:{s.path.stem}", s.path) for s in style_sources if s.prefix == ()]
     inputs = {i["role"]: i["sha256"] for i in input_files([(r, p) for r, p in files if Path(p).is_file()])}
-    return {"inputs": inputs, "versions": versions(), "formats": sorted(formats or spec.model.figure.formats)}
+    return {"inputs": inputs, "versions": versions(), "code": code_sha256(),
+            "formats": sorted(formats or spec.model.figure.formats)}
 
 
 def up_to_date(spec_path: Path, options: BuildOptions) -> tuple[bool, str]:
@@ -92,6 +93,8 @@ def up_to_date(spec_path: Path, options: BuildOptions) -> tuple[bool, str]:
         return False, "the manifest is unreadable"
     if stored.get("versions") != current["versions"]:
         return False, "another figspec or library version"
+    if stored.get("code") != current["code"]:
+        return False, "figspec's code changed"
     if stored.get("formats") != current["formats"]:
         return False, "other formats"
     old, new = stored.get("inputs", {}), current["inputs"]
@@ -119,8 +122,15 @@ def render_one(spec: str, options: BuildOptions, reason: str = "") -> SpecResult
             rendered = pipeline.render(spec, options.outdir, options.formats, resolved=resolved,
                                        profile=options.profile)
             result.files = len(rendered.files)
+            result.findings = [f"{spec}: {f.format()}" for f in rendered.layout]
+            if resolved.scale != 1.0:
+                fig = resolved.spec.model.figure
+                result.notes.append(f"note: {spec}: drawn {fig.width_mm:g} x {fig.height_mm:g} mm, the spec's page "
+                                    f"scaled {resolved.scale:.2f}x with the text of style {options.style!r}")
+            if options.strict and rendered.layout:
+                result.exit = EXIT_USER
             if rendered.profile is not None:
-                result.findings = [f"{spec}: {f.format(rendered.profile)}" for f in rendered.findings]
+                result.findings += [f"{spec}: {f.format(rendered.profile)}" for f in rendered.findings]
                 count = len(rendered.findings)
                 result.notes.append(f"{spec}: journal check {rendered.profile.name}: "
                                     f"{count} finding{'' if count == 1 else 's'}")

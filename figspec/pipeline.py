@@ -34,6 +34,7 @@ class Rendered:
     files: list[Path]
     profile: Profile | None = None
     findings: tuple = ()
+    layout: tuple = ()               # the layout check's findings (figspec.output.layout_check)
 
 
 def check(path: str | Path, style: str | None = None) -> Resolved:
@@ -60,14 +61,17 @@ def render(path: str | Path, outdir: str | Path, formats: Sequence[str] | None =
     (or the spec's ``figure.journal``) when there is one. Pass ``resolved`` to skip loading
     again what :func:`check` already loaded."""
     resolved = resolved or check(path)
-    target = journal.profile(resolved, profile)
+    # a spec drawn for another medium (scaled to another style's text) is not checked against
+    # the journal its own style is for, unless a profile is named for this render
+    target = journal.profile(resolved, profile) if profile or resolved.scale == 1.0 else None
     tables = compute(resolved)
     fig = draw(resolved, tables)
     written = save(resolved, tables, fig, outdir, formats)
+    layout = tuple(journal.layout_findings(resolved, fig))
     if target is None:
-        return Rendered(written)
+        return Rendered(written, layout=layout)
     files = {p.suffix[1:]: p.read_bytes() for p in written if p.suffix in (".svg", ".pdf", ".png")}
-    return Rendered(written, target, tuple(journal.findings(resolved, fig, files, target)))
+    return Rendered(written, target, tuple(journal.findings(resolved, fig, files, target)), layout)
 
 
 def journal_check(resolved: Resolved, profile: str | None = None) -> Rendered:

@@ -75,6 +75,7 @@ def compose(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> "Figu
         _letters(fig, ctx)
     if spec.figure.title:
         fig.suptitle(spec.figure.title)
+        _fit_width(fig, fig._suptitle, spec.figure.width_mm - 2 * TITLE_MARGIN_MM)
     if appearance and spec.stimulus.key:
         ranges = any(p.stimulus is not None and ((p.stimulus["stop_max_ms"] > p.stimulus["stop_min_ms"]).any()
                                                  or (p.stimulus["start_max_ms"] > p.stimulus["start_ms"]).any())
@@ -158,6 +159,26 @@ def _mark(plan: PanelPlan, target, spec: FigureFile, ctx: DrawContext, appearanc
     mark_stimulus(target, window, colour, alpha, ctx.style, mark)
 
 
+LETTER_INSET_MM = 1.0
+TITLE_MARGIN_MM = 1.5
+
+
+def _fit_width(fig, text, width_mm: float) -> None:
+    """Break a text at spaces, as evenly as needed, until every line is narrower than
+    ``width_mm`` (a long figure title on a narrow page)."""
+    from matplotlib.backends.backend_agg import RendererAgg
+
+    renderer = RendererAgg(int(fig.bbox.width), int(fig.bbox.height), fig.dpi)
+    limit = width_mm / MM_PER_INCH * fig.dpi
+    words = text.get_text().split(" ")
+    for lines in range(1, min(len(words), 4) + 1):
+        per = -(-len(words) // lines)
+        candidate = "\n".join(" ".join(words[i:i + per]) for i in range(0, len(words), per))
+        text.set_text(candidate)
+        if text.get_window_extent(renderer).width <= limit:
+            return
+
+
 def _letters(fig, ctx: DrawContext) -> None:
     """Panel letters in reading order (by cell: row, then column), as each subfigure's
     left-aligned super-title, so the layout engine keeps them clear of everything else."""
@@ -166,6 +187,7 @@ def _letters(fig, ctx: DrawContext) -> None:
         letter = "abcdefghijklmnopqrstuvwxyz"[n]
         letter = letter.upper() if style.case == "upper" else letter
         title = sub.get_suptitle()               # a panel arranged in columns keeps its title here
-        x, ha = (0.0, "left") if style.position == "left" else (0.5, "center")
+        inset = LETTER_INSET_MM / MM_PER_INCH * fig.dpi / max(sub.bbox.width, 1.0)   # clear of the page edge
+        x, ha = (inset, "left") if style.position == "left" else (0.5, "center")
         sub.suptitle(f"{letter}   {title}" if title else letter, x=x, ha=ha,
                      fontsize=style.size_pt, fontweight=style.weight)

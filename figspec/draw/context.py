@@ -4,6 +4,7 @@ inside a context, so nothing leaks between figures."""
 from __future__ import annotations
 
 import contextlib
+import re
 from dataclasses import dataclass
 from typing import Iterator
 
@@ -51,6 +52,31 @@ def styled(style: Style) -> Iterator[None]:
         mpl.rcParams.update(style.rc())
         mpl.rcParams["text.parse_math"] = False      # text is literal: "$5 and $6" stays as written
         yield
+
+
+GLYPH = re.compile(r"Glyph (\d+) \(.*?\) missing from font")
+
+
+@contextlib.contextmanager
+def missing_glyphs() -> Iterator[None]:
+    """matplotlib's warnings about characters the font lacks, one per glyph and drawing, become
+    one figspec warning naming the characters; other warnings pass through."""
+    import warnings
+
+    from figspec.errors import FigspecWarning
+
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", UserWarning)
+        yield
+    missing = sorted({chr(int(m.group(1))) for w in caught for m in [GLYPH.search(str(w.message))] if m})
+    for w in caught:
+        if not GLYPH.search(str(w.message)):
+            warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
+    if missing:
+        shown = " ".join(repr(c)[1:-1] if not c.isprintable() else c for c in missing[:10])
+        warnings.warn(f"the font has no glyph for {len(missing)} character(s) in the text ({shown}), which print "
+                      "as empty boxes: use a font that has them (font.family in the style)", FigspecWarning,
+                      stacklevel=3)
 
 
 def typeset_math(fig, pieces: list[str]) -> None:

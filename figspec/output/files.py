@@ -10,7 +10,7 @@ from typing import TYPE_CHECKING, Iterable
 
 import pandas as pd
 
-from figspec.draw.context import styled
+from figspec.draw.context import missing_glyphs, styled
 from figspec.spec.style import Style
 
 if TYPE_CHECKING:
@@ -36,25 +36,8 @@ def figure_files(fig: "Figure", style: Style, formats: Iterable[str], dpi: int, 
                  provenance: str = "") -> dict[str, bytes]:
     """``{format: bytes}`` of a drawn figure, rendered inside its style's context (tick labels
     and font embedding are settled when the file is written)."""
-    import warnings
-
-    with styled(style), warnings.catch_warnings(record=True) as caught:
-        warnings.simplefilter("always", UserWarning)
-        out = {fmt: figure_bytes(fig, fmt, dpi, software, provenance) for fmt in formats}
-    missing = sorted({chr(int(m.group(1))) for w in caught for m in [GLYPH.search(str(w.message))] if m})
-    for w in caught:
-        if not GLYPH.search(str(w.message)):
-            warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
-    if missing:
-        from figspec.errors import FigspecWarning
-
-        warnings.warn(f"the font has no glyph for {len(missing)} character(s) in the text ({' '.join(missing[:10])}), "
-                      "which print as empty boxes: use a font that has them (font.family in the style)",
-                      FigspecWarning, stacklevel=2)
-    return out
-
-
-GLYPH = re.compile(r"Glyph (\d+) \(.*?\) missing from font")
+    with styled(style), missing_glyphs():
+        return {fmt: figure_bytes(fig, fmt, dpi, software, provenance) for fmt in formats}
 
 
 CLIP_ID = re.compile(rb"\bp[0-9a-f]{10}\b")

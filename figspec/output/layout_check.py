@@ -40,10 +40,9 @@ def layout_check(fig: "Figure", edge_mm: float = EDGE_MM, min_text_pt: float = M
     that the layout engine has placed everything (call inside the figure's style context)."""
     from matplotlib.backends.backend_agg import FigureCanvasAgg
 
-    if not isinstance(fig.canvas, FigureCanvasAgg):
-        FigureCanvasAgg(fig)
-    fig.canvas.draw()
-    renderer = fig.canvas.get_renderer()
+    canvas = fig.canvas if isinstance(fig.canvas, FigureCanvasAgg) else FigureCanvasAgg(fig)
+    fig.draw_without_rendering()                 # layout and ticks settled, no pixels
+    renderer = canvas.get_renderer()
     texts = [(t, t.get_window_extent(renderer)) for t in drawn_texts(fig)]
     return (_overlapping_texts(texts) + _edges(fig, texts, edge_mm) + _small(texts, min_text_pt)
             + _keys_over_data(fig, renderer))

@@ -61,6 +61,16 @@ def versions() -> dict[str, str]:
     return {"figspec": __version__, **{name: version(name) for name in ("matplotlib", "numpy", "pandas", "scipy")}}
 
 
+def code_sha256() -> str:
+    """sha256 of figspec's own modules and built-in styles: an edited install (a developer's,
+    an editable one) rebuilds what it may draw differently, although its version is the same."""
+    package = Path(__file__).resolve().parents[1]
+    digest = hashlib.sha256()
+    for path in sorted(package.rglob("*.py")) + sorted(BUILTIN_STYLES.rglob("*.toml")):
+        digest.update(path.relative_to(package).as_posix().encode() + b"\0" + path.read_bytes())
+    return digest.hexdigest()
+
+
 def build_inputs(inputs: list[dict]) -> dict[str, str]:
     """``{role: sha256}`` of a figure's inputs: the part of the build record incremental builds compare."""
     return {i["role"]: i["sha256"] for i in inputs}

@@ -74,6 +74,7 @@ class SummaryStyle(Frozen):
 
 class FigureDefaults(Frozen):
     width_mm: Annotated[float, Field(gt=0, le=2000)]
+    width_is_a_limit: bool          # print (a journal column): true; slides and posters: false
 
 
 class Style(Frozen):
@@ -90,6 +91,24 @@ class Style(Frozen):
     raster: RasterStyle
     rate: RateStyle
     stimulus: StimulusStyle
+    size_scale: Annotated[float, Field(gt=0, le=20)] = 1.0   # set by figspec when it scales a whole figure
+
+    def with_sizes_of(self, other: "Style", scale: float) -> "Style":
+        """This style (colours, font, spines ...) with every size of ``other`` times ``scale``:
+        text, lines, ticks, markers, letters and the gaps between them, so a figure drawn in it
+        is ``other``'s figure scaled as a whole."""
+        def sized(mine, theirs):
+            update = {name: getattr(theirs, name) * scale for name, info in type(theirs).model_fields.items()
+                      if name.endswith("_pt") or name == "tick_length_pt"}
+            return mine.model_copy(update=update)
+
+        return self.model_copy(update={"font": sized(self.font, other.font), "axes": sized(self.axes, other.axes),
+                                       "raster": sized(self.raster, other.raster),
+                                       "rate": sized(self.rate, other.rate),
+                                       "letters": sized(self.letters, other.letters),
+                                       "scale_bar": sized(self.scale_bar, other.scale_bar),
+                                       "summary": sized(self.summary, other.summary),
+                                       "size_scale": other.size_scale * scale})
 
     def rc(self) -> dict[str, object]:
         """matplotlib settings for this style (applied only inside a context)."""
@@ -114,10 +133,10 @@ class Style(Frozen):
             "axes.spines.bottom": "bottom" in a.spines,
             "axes.spines.right": "right" in a.spines,
             "axes.spines.top": "top" in a.spines,
-            "axes.titlepad": 4.5,
-            "axes.labelpad": 2.0,
-            "xtick.major.pad": 1.5,
-            "ytick.major.pad": 1.5,
+            "axes.titlepad": 4.5 * self.size_scale,
+            "axes.labelpad": 2.0 * self.size_scale,
+            "xtick.major.pad": 1.5 * self.size_scale,
+            "ytick.major.pad": 1.5 * self.size_scale,
             "pdf.fonttype": 42,
             "ps.fonttype": 42,
             "svg.fonttype": "none",

@@ -6,7 +6,7 @@ from __future__ import annotations
 from typing import TYPE_CHECKING
 
 from figspec.draw.compose import PanelPlan, compose
-from figspec.draw.context import DrawContext, Labels, check_fonts, styled
+from figspec.draw.context import DrawContext, Labels, check_fonts, missing_glyphs, styled
 from figspec.errors import UserError
 from figspec.registry import kind_of
 from figspec.spec.panel_base import PanelBase
@@ -22,7 +22,7 @@ def draw(resolved: Resolved, tables: Tables) -> "Figure":
     check_fonts(resolved.style)
     model = resolved.spec.model
     ctx = DrawContext(style=resolved.style, levels=model.levels)
-    with styled(resolved.style):
+    with styled(resolved.style), missing_glyphs():
         try:
             return compose(model, [plan(resolved, tables, p) for p in resolved.panels], ctx)
         except UserError as err:               # limits found only with the data drawn (a tick step)

@@ -8,6 +8,7 @@ from dataclasses import replace
 from figspec.draw.context import styled
 from figspec.errors import UserError
 from figspec.output.journal_check import journal_check
+from figspec.output.layout_check import layout_check
 from figspec.registry import kind_of
 from figspec.spec.journals import Profile, load_profile
 from figspec.steps.resolve import Resolved, pulled_in
@@ -29,6 +30,12 @@ def profile(resolved: Resolved, name: str | None) -> Profile | None:
     except UserError as err:
         located = type(err)([resolved.spec.locate(p) for p in err.problems])
         raise pulled_in(resolved.spec, located, ("figure", "journal"), f"journal profile {name!r}") from None
+
+
+def layout_findings(resolved: Resolved, fig) -> list:
+    """The layout check's findings on the drawn figure, in its style."""
+    with styled(resolved.style):
+        return layout_check(fig)
 
 
 def findings(resolved: Resolved, fig, files: dict[str, bytes], target: Profile) -> list:

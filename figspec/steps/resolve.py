@@ -37,6 +37,7 @@ class Resolved:
     style: Style
     style_sources: tuple = ()
     panel_recordings: dict[str, Recording] | None = None
+    scale: float = 1.0               # the page's scale when drawn in another style than the spec's
 
     def recording(self, panel: PanelBase) -> Recording:
         if self.panel_recordings is not None and panel.name in self.panel_recordings:
@@ -52,9 +53,19 @@ def resolve(spec: LoadedSpec, style: str | None = None, frames: dict | None = No
     """The resolved spec (``style`` overrides the spec's own style; ``frames`` gives sources'
     tables as DataFrames instead of files: source name -> (spikes, trials))."""
     resolved_style = load_style(spec, style)
-    if spec.model.figure.width_mm is None:     # the style's default width
-        figure = spec.model.figure.model_copy(update={"width_mm": resolved_style.style.figure.width_mm})
-        spec = replace(spec, model=spec.model.model_copy(update={"figure": figure}))
+    scale = 1.0
+    if style and style != spec.model.figure.style:
+        own = load_style(spec, None).style
+        scale = reflow_scale(spec, own, resolved_style.style)
+        resolved_style = replace(resolved_style, style=resolved_style.style.with_sizes_of(own, scale))
+    figure = spec.model.figure
+    if scale != 1.0:                  # the spec's own page (its width, or its style's), scaled
+        own_width = figure.width_mm or load_style(spec, None).style.figure.width_mm
+        figure = figure.model_copy(update={"width_mm": min(own_width * scale, 2000.0),
+                                           "height_mm": min(figure.height_mm * scale, 2000.0)})
+    elif figure.width_mm is None:     # the style's default width
+        figure = figure.model_copy(update={"width_mm": resolved_style.style.figure.width_mm})
+    spec = replace(spec, model=spec.model.model_copy(update={"figure": figure}))
     recordings = load_recordings(spec, frames or {})
     done = [complete_panel(spec, recordings, i) for i in range(len(spec.model.panels))]
     problems = [p for _, _, found in done for p in found]
@@ -70,7 +81,23 @@ def resolve(spec: LoadedSpec, style: str | None = None, frames: dict | None = No
             for i, (p, rec, found) in enumerate(done)]
     return Resolved(spec=spec, recordings=recordings, panels=tuple(p for p, _, _ in done),
                     style=resolved_style.style, style_sources=resolved_style.sources,
-                    panel_recordings={p.name: rec for p, rec, _ in done})
+                    panel_recordings={p.name: rec for p, rec, _ in done}, scale=scale)
+
+
+def reflow_scale(spec: LoadedSpec, own: Style, style: Style) -> float:
+    """How much a spec drawn in another style than its own is scaled as a whole: by the ratio
+    of the two styles' body text, so the page, its text, lines and gaps grow (or shrink)
+    together and the layout the spec was made with stays as it was. A style whose width is a
+    limit (a journal column) cannot take a page that would be wider: that is an error saying so."""
+    scale = style.font.body_pt / own.font.body_pt
+    width = spec.model.figure.width_mm or own.figure.width_mm
+    if style.figure.width_is_a_limit and width * scale > style.figure.width_mm * 1.01:
+        raise spec.error([Problem(
+            f"this spec cannot be drawn in the style named on the command line: keeping its layout at "
+            f"{style.font.body_pt:g}-pt text needs a page {width * scale:.0f} mm wide, but that style prints at most "
+            f"{style.figure.width_mm:g} mm wide (make a spec for that width: fewer panels side by side)",
+            ("figure", "width_mm") if spec.model.figure.width_mm else ("figure", "style"))])
+    return scale
 
 
 def load_style(spec: LoadedSpec, style: str | None) -> ResolvedStyle:

@@ -12,7 +12,8 @@ from figspec.compute.describe import About
 from figspec.output.names import output_stem
 from figspec.output.files import figure_files, table_bytes
 from figspec.output.output_set import write_set
-from figspec.output.provenance import build_inputs, input_files, parameters, provenance_line, versions
+from figspec.output.provenance import (build_inputs, code_sha256, input_files, parameters, provenance_line,
+                                       versions)
 from figspec.output.report import legend_text, manifest, statistics_table
 from figspec.registry import kind_of
 from figspec.spec.layout import panel_letters
@@ -81,7 +82,7 @@ def save(resolved: Resolved, tables: Tables, fig: "Figure", outdir: str | Path,
     payload[data_dir / "statistics.csv"] = table_bytes(statistics(resolved, tables))
     payload[data_dir / "legend.md"] = legend(resolved, tables).encode()
     outputs = {p.relative_to(outdir).as_posix(): data for p, data in payload.items()}
-    build = {"inputs": build_inputs(sources), "versions": versions(),
+    build = {"inputs": build_inputs(sources), "versions": versions(), "code": code_sha256(),
              "formats": sorted(formats or model.figure.formats)}
     payload[data_dir / "manifest.json"] = manifest(sources, outputs,
                                                    {**parameters(model, resolved.panels, resolved.style),
