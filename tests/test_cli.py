@@ -134,3 +134,26 @@ def test_bad_layout_exits_2(tmp_path):
     result = figspec("check", write_spec(tmp_path, text))
     assert result.returncode == 2 and "Traceback" not in result.stderr
     assert "panels[1].cell: cell [1, 1] is already taken by panels[0] ('spikes') (got [1, 1])" in result.stderr
+
+
+def test_specs_that_would_write_the_same_outputs_are_an_error(tmp_path, cli):
+    from helpers import SMALL_SPEC, write_spec
+
+    (tmp_path / "a").mkdir()
+    (tmp_path / "b").mkdir()
+    first = write_spec(tmp_path / "a", SMALL_SPEC, "fig.toml")
+    second = write_spec(tmp_path / "b", SMALL_SPEC, "fig.toml")
+    ran = cli("render", first, second, "-o", tmp_path / "out")
+    assert ran.returncode == 2 and "Traceback" not in ran.stderr
+    assert f"{second}: writes the same outputs (fig.*, fig_data/) as {first}" in ran.stderr
+    assert not (tmp_path / "out").exists()
+
+
+def test_dotted_spec_names_keep_their_whole_name(tmp_path, cli):
+    from helpers import SMALL_SPEC, write_spec
+
+    specs = [write_spec(tmp_path, SMALL_SPEC, name) for name in ("fig2.v1.toml", "fig2.v2.toml")]
+    ran = cli("render", *specs, "-o", tmp_path / "out", "--format", "png", "--jobs", "1")
+    assert ran.returncode == 0, ran.stderr
+    assert sorted(p.name for p in (tmp_path / "out").iterdir()) == ["fig2.v1.png", "fig2.v1_data", "fig2.v2.png",
+                                                                     "fig2.v2_data"]
