@@ -13,6 +13,34 @@ from typing import Iterable
 from figspec.spec.style import Style
 
 CATEGORY = "category:"
+MAX_LIGHTNESS = 75.0       # CIELAB L*: lines lighter than this fade into white paper (common practice)
+
+
+def lightness(rgb) -> "np.ndarray":
+    """CIELAB L* of sRGB colours (..., 3) in 0-1 (IEC 61966-2-1 transfer, CIE 1976 L*)."""
+    import numpy as np
+
+    c = np.asarray(rgb, dtype=float)
+    linear = np.where(c <= 0.04045, c / 12.92, ((c + 0.055) / 1.055) ** 2.4)
+    y = linear @ np.array([0.2126, 0.7152, 0.0722])
+    return np.where(y > (6 / 29) ** 3, 116 * np.cbrt(y) - 16, 116 * (y * (29 / 6) ** 2 / 3 + 4 / 29) - 16)
+
+
+def visible_range(cmap, max_lightness: float = MAX_LIGHTNESS) -> tuple[float, float]:
+    """The longest stretch of a sequential colour map, as (start, stop) in 0-1, whose colours
+    are no lighter than ``max_lightness``: levels drawn as lines take their colours from it."""
+    import numpy as np
+
+    t = np.linspace(0.0, 1.0, 256)
+    ok = lightness(cmap(t)[:, :3]) <= max_lightness
+    best, start = (0, 0), None
+    for i, good in enumerate(np.r_[ok, False]):
+        if good and start is None:
+            start = i
+        elif not good and start is not None:
+            best = max(best, (start, i - 1), key=lambda r: r[1] - r[0])
+            start = None
+    return float(t[best[0]]), float(t[best[1]])
 
 
 def unit_colours(units: Iterable[str], style: Style) -> dict[str, str]:

@@ -80,7 +80,10 @@ def compose(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> "Figu
         ranges = any(p.stimulus is not None and ((p.stimulus["stop_max_ms"] > p.stimulus["stop_min_ms"]).any()
                                                  or (p.stimulus["start_max_ms"] > p.stimulus["start_ms"]).any())
                      for p in plans)
-        stimulus_key(fig, appearance, spec.stimulus.label, spec.levels.label, ranges)
+        shaded = [sub for sub in fig.subfigs if any(a.get_gid() == "stimulus" for ax in sub.axes for a in ax.patches)]
+        # under the one panel that shows the stimulus, else under the whole figure
+        stimulus_key(shaded[0] if len(shaded) == 1 else fig, appearance, spec.stimulus.label, spec.levels.label,
+                     ranges)
     typeset_math(fig, math_pieces(spec))
     return fig
 

@@ -8,7 +8,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
-from figspec.draw.colours import category_gid, unit_colours
+from figspec.draw.colours import category_gid, unit_colours, visible_range
 from figspec.draw.context import DrawContext, Labels, group_key
 from figspec.spec.models import LevelSpec
 from figspec.spec.panels import PsthPanel
@@ -82,7 +82,8 @@ def _overlay(ax: "Axes", table: pd.DataFrame, panel: PsthPanel, ctx: DrawContext
         values = np.asarray(groups, dtype=float)
         cmap = mpl.colormaps[ctx.style.palette.levels]
         norm = mpl.colors.Normalize(values.min(), values.max() if values.max() > values.min() else values.min() + 1)
-        colours = {g: cmap(0.15 + 0.85 * norm(g)) for g in groups}     # skip the palest end
+        lo, hi = visible_range(cmap)                                     # never near-white on white
+        colours = {g: cmap(lo + (hi - lo) * norm(g)) for g in groups}
     else:
         colours = unit_colours(groups, ctx.style)
     for value, rows in table.groupby(panel.repeat, sort=False):

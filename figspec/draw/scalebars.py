@@ -11,6 +11,28 @@ def bar_length(span: float) -> float:
     return top if top <= span / 2 else top / 2
 
 
+def reserve_label_space(ax, ctx) -> None:
+    """Keep the room the axes' x tick labels and label took (so rows line up with a neighbouring
+    panel that has axes) with an empty, textless mark at their lowest point: no invisible text
+    that a PDF reader could select or a screen reader read."""
+    from matplotlib.patches import Rectangle
+    from matplotlib.transforms import offset_copy
+
+    from matplotlib.backends.backend_agg import RendererAgg
+
+    fig = ax.get_figure(root=True)
+    renderer = RendererAgg(int(fig.bbox.width), int(fig.bbox.height), fig.dpi)
+    labels = ax.xaxis.get_tightbbox(renderer)              # tick labels and label as they would be drawn
+    if labels is None:
+        return
+    depth = (ax.get_window_extent(renderer).y0 - labels.y0) * 72.0 / fig.dpi
+    if depth <= 0:
+        return
+    where = offset_copy(ax.transAxes, fig=fig, y=-depth, units="points")
+    ax.add_patch(Rectangle((0.5, 0.0), 1e-3, 1e-3, transform=where, fill=False, linewidth=0, clip_on=False,
+                           gid="label_space"))
+
+
 def draw_scale_bars(axes: list, plan, ctx) -> None:
     """Hide the axes' spines and ticks and draw a time bar (``time_bar_ms``) and, when the
     panel's y values have a unit (a rate), a y bar (``rate_bar``) at the lower right of the
@@ -21,9 +43,12 @@ def draw_scale_bars(axes: list, plan, ctx) -> None:
     for ax in axes:
         for spine in ax.spines.values():
             spine.set_visible(False)
-        ax.tick_params(left=False, bottom=False, labelleft=False, labelcolor="none")
-        if ax.get_xlabel():
-            ax.xaxis.label.set_color("none")   # keeps its space, so rows line up with neighbours
+        reserve_label_space(ax, ctx)
+        ax.tick_params(left=False, bottom=False, labelleft=False, labelbottom=False)
+        ax.set_xlabel("")
+        if plan.labels.y_unit:                  # where y has a unit, its zero stays visible
+            ax.axhline(0.0, color="0.6",
+                       linewidth=ctx.style.axes.line_pt / 2, zorder=0.5, gid="baseline")
     ax = axes[-1]
     x0, x1 = panel.window_ms
     time_bar = panel.time_bar_ms or bar_length(x1 - x0)

@@ -109,7 +109,8 @@ def mark_stimulus(ax: "Axes", window: pd.Series, colour: str, alpha: float, styl
 
 
 def stimulus_key(fig, appearance: dict[float, tuple], label: str, level_text, ranges: bool) -> None:
-    """A small key under the figure: the stimulus at the lowest, a middle and the highest level."""
+    """A small key under ``fig`` (the figure, or the one panel's subfigure that shows the
+    stimulus): the stimulus at the lowest, a middle and the highest level."""
     from matplotlib.patches import Patch
 
     levels = sorted(appearance)

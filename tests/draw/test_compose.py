@@ -166,3 +166,19 @@ def test_letter_case_and_position_come_from_the_style(tmp_path):
     sub = fig.subfigs[0]
     assert sub.get_suptitle() == "A"
     assert sub._suptitle.get_horizontalalignment() == "center"
+
+
+def test_scale_bar_rows_keep_a_baseline_and_hold_no_invisible_text(composite):
+    """Text kept only to reserve space is selectable in a PDF and read by screen readers: none."""
+    from matplotlib.colors import to_rgba
+    from matplotlib.text import Text
+
+    fig, _ = composite
+    rate = panel_axes(fig, "Firing rate")
+    hidden = [t.get_text() for t in fig.findobj(Text) if t.get_text().strip() and t.get_visible()
+              and (to_rgba(t.get_color())[3] == 0 or t.get_alpha() == 0)]
+    assert hidden == []
+    for ax in rate:
+        [baseline] = [line for line in ax.get_lines() if line.get_gid() == "baseline"]
+        assert list(baseline.get_ydata()) == [0.0, 0.0]
+        assert not any(t.get_visible() and t.get_text() for t in ax.get_xticklabels())
