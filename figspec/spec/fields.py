@@ -130,9 +130,18 @@ def math_pieces(model: BaseModel) -> list[str]:
 
 
 def _hex_colour(value: str) -> str:
+    from figspec.spec.css_colours import CSS_COLOURS
+
+    named = CSS_COLOURS.get(value.strip().lower())
+    if named is not None:
+        return named
     text = value.lstrip("#")
-    if len(text) not in (6, 8) or any(c not in "0123456789abcdefABCDEF" for c in text):
-        raise ValueError("a colour is a hex string like '#1f4e79'")
+    if not value.startswith("#") or len(text) not in (6, 8) or any(c not in "0123456789abcdefABCDEF" for c in text):
+        import difflib
+
+        close = difflib.get_close_matches(value.lower(), CSS_COLOURS, n=1, cutoff=0.75)
+        hint = f"; did you mean {close[0]!r}?" if close else ""
+        raise ValueError(f"a colour is a hex string like '#1f4e79' or a CSS colour name like 'steelblue'{hint}")
     return "#" + text.lower()
 
 

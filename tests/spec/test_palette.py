@@ -29,3 +29,17 @@ def test_unit_colours_stay_distinct_and_visible(style):
         for deficiency in ("deuteranopia", "protanopia"):        # Machado et al. 2009 simulation
             assert float(delta_e(simulate(a, deficiency), simulate(b, deficiency))) >= MIN_DELTA_E_CVD
     assert all(float(lab(c)[0]) <= MAX_LIGHTNESS for c in colours)
+
+
+def test_colours_by_css_name_are_the_w3c_named_colours():
+    import matplotlib.colors as mc
+    from pydantic import TypeAdapter
+
+    from figspec.spec.css_colours import CSS_COLOURS
+    from figspec.spec.fields import Colour
+
+    assert CSS_COLOURS == {name: value.lower() for name, value in mc.CSS4_COLORS.items()}
+    colour = TypeAdapter(Colour)
+    assert colour.validate_python("SteelBlue") == "#4682b4" == colour.validate_python("#4682B4")
+    with pytest.raises(ValueError, match="did you mean 'steelblue'"):
+        colour.validate_python("steelblu")
