@@ -86,11 +86,39 @@ def unit_rates(sel: Selection, unit: str, panel: PsthPanel, bin_ms: float, kerne
         rate = causal_smooth(rate, kernel_ms / bin_ms)
     if panel.measure == "z_score":
         rate = _z_score(rate, edges, panel, unit)
+    if panel.normalise != "none":
+        rate = _normalised(rate, edges, panel, unit)
     return pd.DataFrame({"unit": unit, "level": np.repeat(levels, n_bins),
                          "bin_start_ms": np.tile(edges[:-1], levels.size),
                          "bin_stop_ms": np.tile(edges[1:], levels.size),
                          "n_trials": np.repeat(n_trials, n_bins), "count": counts.ravel(),
-                         "rate": rate.ravel(), "rate_unit": RATE_UNITS[panel.measure]})
+                         "rate": rate.ravel(), "rate_unit": rate_unit(panel)})
+
+
+NORMALISED = {"peak": "x unit's peak", "baseline": "x unit's baseline"}
+
+
+def rate_unit(panel: PsthPanel) -> str:
+    """What a rate value is in: the measure's unit, or a multiple of the unit's own peak or
+    baseline rate when the panel normalises."""
+    return NORMALISED[panel.normalise] if panel.normalise != "none" else RATE_UNITS[panel.measure]
+
+
+def _normalised(rate: np.ndarray, edges: np.ndarray, panel: PsthPanel, unit: str) -> np.ndarray:
+    """A unit's rate divided by its own peak (the highest bin at any level shown) or its own
+    baseline (the mean over every level's bins wholly before onset, or in ``baseline_ms``), so
+    units of different rates can be averaged in a population (common practice)."""
+    if panel.normalise == "peak":
+        divisor = float(np.nanmax(rate)) if rate.size else 0.0
+    else:
+        start, stop = panel.baseline_ms or (panel.window_ms[0], 0.0)
+        base = (edges[:-1] >= start - 1e-9) & (edges[1:] <= stop + 1e-9)
+        divisor = float(rate[:, base].mean()) if base.any() else 0.0
+    if not divisor > 0:
+        warnings.warn(f"unit {unit}: its {panel.normalise} rate is 0, so its normalised rate is undefined (left "
+                      "empty)", FigspecWarning, stacklevel=3)
+        return np.full_like(rate, np.nan, dtype=float)
+    return rate / divisor
 
 
 def _z_score(rate: np.ndarray, edges: np.ndarray, panel: PsthPanel, unit: str) -> np.ndarray:
@@ -172,6 +200,10 @@ def legend(panel: PsthPanel, table: pd.DataFrame, about: About) -> str:
         width = "SD" if panel.smooth == "gaussian" else "time constant"
         text += f", smoothed with a {panel.smooth} kernel ({width} {panel.kernel_ms:.3g} ms{how})"
     units, pooled = unit_text(table), ""
+    if panel.normalise != "none":
+        text += (f"; each unit's rate divided by its own {panel.normalise} rate ("
+                 + ("its highest bin at any level shown" if panel.normalise == "peak" else
+                    "its mean over the baseline bins of every level") + ")")
     if "rate_sem" in table:
         n_units = int(table["n_units"].max())
         text += f"; line and band: mean ± SEM across {n_units} units"

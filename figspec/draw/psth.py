@@ -18,7 +18,8 @@ if TYPE_CHECKING:
 
 TIME_LABEL = "Time from stimulus onset (ms)"
 RATE_LABELS = {"spikes/s": "Rate (spikes/s)", "spikes/trial": "Spikes/trial per bin",
-               "spikes": "Spikes per bin", "SD from baseline": "Rate (z-score)"}
+               "spikes": "Spikes per bin", "SD from baseline": "Rate (z-score)",
+               "x unit's peak": "Rate / unit's peak rate", "x unit's baseline": "Rate / unit's baseline rate"}
 
 
 def nice_top(value: float) -> float:

@@ -49,6 +49,7 @@ class PsthPanel(TimePanel):
     bin_ms: PositiveMs | Literal["auto"] = 5.0
     bin_search_ms: WindowMs = (1.0, 50.0)
     measure: Literal["spikes_per_s", "spikes_per_trial", "count", "z_score"] = "spikes_per_s"
+    normalise: Literal["none", "peak", "baseline"] = "none"
     baseline_ms: WindowMs | None = None
     smooth: Literal["none", "gaussian", "causal"] = "none"
     kernel_ms: PositiveMs | Literal["auto"] | None = None
@@ -92,6 +93,10 @@ class PsthPanel(TimePanel):
         ):
             raise ValueError(f"baseline_ms must lie inside window_ms and end by stimulus onset (0 ms), "
                              f"got {list(self.baseline_ms)}")
+        if self.normalise != "none" and self.measure == "z_score":
+            raise ValueError("z-scores are already relative to the baseline: normalise = 'none' with them")
+        if self.normalise == "baseline" and self.window_ms[0] >= 0 and self.baseline_ms is None:
+            raise ValueError("normalise = 'baseline' needs pre-stimulus bins: start window_ms before 0")
         if self.measure == "z_score" and self.window_ms[0] >= 0 and self.baseline_ms is None:
             raise ValueError("measure = 'z_score' needs pre-stimulus bins: start window_ms before 0")
         return self

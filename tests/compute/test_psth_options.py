@@ -52,3 +52,30 @@ def test_auto_bin_width_is_reported_in_the_edges(rng):
     table = compute_panel(build_recording(spikes, trials), panel("psth", bin_ms="auto"))
     widths = (table["bin_stop_ms"] - table["bin_start_ms"]).round(9).unique()
     assert len(widths) == 1 and 1.0 <= widths[0] <= 50.0
+
+
+@pytest.mark.parametrize("how", ["peak", "baseline"])
+def test_a_normalised_population_divides_each_unit_by_its_own_rate_first(tmp_path, how):
+    """The population mean of normalised rates equals the mean of each unit's rates divided by
+    that unit's own peak (or baseline mean), computed here with pandas from the per-unit table."""
+    from figspec import pipeline
+    from helpers import demo_text, figspec_warnings, write_spec
+
+    text = demo_text("level_summary")
+    population = text.replace('name = "population"', 'name = "population"\nnormalise = "%s"' % how)
+    per_unit = population.replace('normalise = "%s"' % how, 'normalise = "none"\nrepeat = "unit"\narrange = "overlay"')
+    tables = {}
+    for name, body in (("norm", population), ("raw", per_unit)):
+        with figspec_warnings():                              # the demo's poorly constrained fits say so
+            resolved = pipeline.check(write_spec(tmp_path, body, f"{name}.toml"))
+            tables[name] = pipeline.compute(resolved).panels["population"]
+    raw = tables["raw"]
+    if how == "peak":
+        divisor = raw.groupby("unit")["rate"].transform("max")
+    else:
+        before = raw["bin_stop_ms"] <= 0
+        divisor = raw["unit"].map(raw[before].groupby("unit")["rate"].mean())
+    expected = (raw.assign(rate=raw["rate"] / divisor).groupby(["level", "bin_start_ms"])["rate"].mean())
+    got = tables["norm"].set_index(["level", "bin_start_ms"])["rate"]
+    np.testing.assert_allclose(got.loc[expected.index].to_numpy(), expected.to_numpy(), rtol=1e-12)
+    assert tables["norm"]["rate_unit"].iloc[0] == f"x unit's {how}"
