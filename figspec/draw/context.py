@@ -9,7 +9,7 @@ from dataclasses import dataclass
 from typing import Iterator
 
 from figspec.errors import FigspecWarning
-from figspec.spec.models import LevelSpec
+from figspec.spec.models import LevelSpec, UnitsSpec
 from figspec.spec.style import Style
 
 
@@ -19,6 +19,11 @@ class DrawContext:
 
     style: Style
     levels: LevelSpec
+    units: "UnitsSpec | None" = None
+
+    def unit_label(self, unit: str) -> str:
+        """A unit's display name (``[units] names``), else its name in the data."""
+        return self.units.label(unit) if self.units is not None else str(unit)
 
 
 def check_fonts(style: Style) -> None:

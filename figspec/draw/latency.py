@@ -36,7 +36,7 @@ def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LatencyPanel, ctx: 
         if panel.fit == "none":
             ax.plot(x, y, "-", color=c, gid=f"line:{unit}")
         responsive = rows["responsive"].to_numpy(dtype=bool)
-        ax.plot(x[responsive], y[responsive], "o", color=c, label=unit, gid=category_gid(unit))
+        ax.plot(x[responsive], y[responsive], "o", color=c, label=ctx.unit_label(unit), gid=category_gid(unit))
         ax.plot(x[~responsive], y[~responsive], "o", color="white", markeredgecolor=c, gid=f"points_ns:{unit}")
         draw_fit(ax, curve[curve["unit"] == unit], "latency_ms", c, unit)
     set_level_scale(ax, panel)

@@ -39,7 +39,7 @@ def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LevelResponsePanel,
         line = "none" if panel.fit != "none" else "-"
         ax.errorbar(x, y, yerr=np.nan_to_num(err), color=c, linestyle=line, marker="none", gid=f"errors:{unit}")
         sig = rows["significant"].to_numpy(dtype=bool) if tested else np.ones(len(rows), bool)
-        ax.plot(x[sig], y[sig], "o", color=c, markeredgecolor=c, label=unit, gid=category_gid(unit))
+        ax.plot(x[sig], y[sig], "o", color=c, markeredgecolor=c, label=ctx.unit_label(unit), gid=category_gid(unit))
         ax.plot(x[~sig], y[~sig], "o", color="white", markeredgecolor=c, gid=f"points_ns:{unit}")
         draw_fit(ax, curve[curve["unit"] == unit], "response", c, unit)
         thr = params[(params["unit"] == unit) & (params["quantity"] == "threshold_by_test")]["value"]

@@ -89,7 +89,7 @@ def _overlay(ax: "Axes", table: pd.DataFrame, panel: PsthPanel, ctx: DrawContext
         colours = unit_colours(groups, ctx.style)
     for value, rows in table.groupby(panel.repeat, sort=False):
         edges = np.r_[rows["bin_start_ms"].to_numpy(), rows["bin_stop_ms"].to_numpy()[-1]]
-        label = ctx.levels.label(value) if panel.repeat == "level" else str(value)
+        label = ctx.levels.label(value) if panel.repeat == "level" else ctx.unit_label(value)
         gid = f"rate:{value}" if panel.repeat == "level" else category_gid(value)
         ax.stairs(rows["rate"].to_numpy(), edges, color=colours[value], linewidth=ctx.style.summary.line_pt,
                   label=label, gid=gid)

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from typing import Annotated, Any, Literal
 
-from pydantic import Field, model_validator
+from pydantic import Field, field_validator, model_validator
 
 from figspec.errors import Problem, toml_text
 from figspec.spec.layout import LayoutSpec, SharedGroup, grid_problems
@@ -43,6 +43,22 @@ class LevelSpec(Frozen):
     unit: Text = ""
     order: Literal["high_at_top", "low_at_top"] = "high_at_top"
     scale: Literal["pressure_db", "power_db", "linear"] | None = None
+    names: dict[str, Text] = Field(default_factory=dict)
+
+    @field_validator("names")
+    @classmethod
+    def _numeric_keys(cls, names: dict[str, str]) -> dict[str, str]:
+        for key in names:
+            try:
+                float(key)
+            except ValueError:
+                raise ValueError(f"names are keyed by the level as a number in quotes, e.g. \"0\" = \"silence\" "
+                                 f"(got key {key!r})") from None
+        return names
+
+    def name_of(self, value: float) -> str | None:
+        """The display name the spec gives the level ``value``, if any."""
+        return next((name for key, name in self.names.items() if float(key) == float(value)), None)
 
     @model_validator(mode="after")
     def _db_scale(self) -> "LevelSpec":
@@ -56,8 +72,22 @@ class LevelSpec(Frozen):
         return f"{self.quantity} ({self.unit})" if self.unit else self.quantity
 
     def label(self, value: float) -> str:
+        """How a level is named in the figure: its display name, else its value and unit."""
+        name = self.name_of(value)
+        if name is not None:
+            return name
         text = f"{value:g}"
         return f"{text} {self.unit}" if self.unit else text
+
+
+class UnitsSpec(Frozen):
+    """``[units]``: display names of units (keys: the unit as the data name it)."""
+
+    names: dict[str, Text] = Field(default_factory=dict)
+
+    def label(self, unit: str) -> str:
+        """How a unit is named in the figure (a pooled unit ``source/unit`` by its own name too)."""
+        return self.names.get(unit) or self.names.get(str(unit).split("/")[-1]) or str(unit)
 
 
 class StimulusSpec(Frozen):
@@ -103,6 +133,7 @@ class FigureFile(Frozen):
 
     figure: FigureSpec = FigureSpec()
     levels: LevelSpec = LevelSpec()
+    units: UnitsSpec = UnitsSpec()
     stimulus: StimulusSpec
     layout: LayoutSpec | None = None
     sources: dict[Name, Source] = Field(min_length=1)

@@ -21,7 +21,7 @@ def draw(resolved: Resolved, tables: Tables) -> "Figure":
     """The figure of a resolved spec, drawn from its tables in its style."""
     check_fonts(resolved.style)
     model = resolved.spec.model
-    ctx = DrawContext(style=resolved.style, levels=model.levels)
+    ctx = DrawContext(style=resolved.style, levels=model.levels, units=model.units)
     with styled(resolved.style), missing_glyphs():
         try:
             return compose(model, [plan(resolved, tables, p) for p in resolved.panels], ctx)
@@ -68,4 +68,4 @@ def _repeats(resolved: Resolved, panel, table, stim) -> tuple[list, list[str]]:
             text = {g: f"\nn = {int(n[g])}" for g in groups}
         return groups, [model.levels.label(g) + (text[g] if counts else "") for g in groups]
     n = stim.groupby("unit")["n_trials"].first()
-    return list(panel.units), [g + (f"\nn = {int(n[g])}" if counts else "") for g in panel.units]
+    return list(panel.units), [model.units.label(g) + (f"\nn = {int(n[g])}" if counts else "") for g in panel.units]

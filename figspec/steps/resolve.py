@@ -67,6 +67,12 @@ def resolve(spec: LoadedSpec, style: str | None = None, frames: dict | None = No
         figure = figure.model_copy(update={"width_mm": resolved_style.style.figure.width_mm})
     spec = replace(spec, model=spec.model.model_copy(update={"figure": figure}))
     recordings = load_recordings(spec, frames or {})
+    unknown = [name for name in spec.model.units.names
+               if not any(name in rec.units or name in {u.split("/")[-1] for u in rec.units} for rec in recordings.values())]
+    if unknown:
+        raise spec.error([Problem(f"no unit of this name in any source (units: "
+                                  f"{', '.join(sorted({u for r in recordings.values() for u in r.units}))})",
+                                  ("units", "names", name), toml_text(name)) for name in unknown], DataError)
     done = [complete_panel(spec, recordings, i) for i in range(len(spec.model.panels))]
     problems = [p for _, _, found in done for p in found]
     if problems:
