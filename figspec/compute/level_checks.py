@@ -19,7 +19,8 @@ def check(rec: Recording, panel, levels: LevelSpec) -> list[Problem]:
         problems.append(Problem(f"a {model} fit has {FIT_PARAMETERS[model]} parameters but the panel shows "
                                 f"only {len(shown)} levels (at least {FIT_PARAMETERS[model] + 1} are needed)",
                                 ("fit",), repr(model)))
-    if panel.level_axis == "log" and np.any(shown <= 0):
-        problems.append(Problem("a logarithmic level axis needs every level > 0", ("level_axis",),
+    if panel.level_axis == "log" and (np.any(shown < 0) or not np.any(shown > 0)):
+        problems.append(Problem("a logarithmic level axis needs levels >= 0 and some > 0 (a level of 0 is drawn "
+                                "left of the log range, after an axis break)", ("level_axis",),
                                 f"levels from {shown.min():g}"))
     return problems

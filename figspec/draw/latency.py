@@ -39,7 +39,7 @@ def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LatencyPanel, ctx: 
         ax.plot(x[responsive], y[responsive], "o", color=c, label=ctx.unit_label(unit), gid=category_gid(unit))
         ax.plot(x[~responsive], y[~responsive], "o", color="white", markeredgecolor=c, gid=f"points_ns:{unit}")
         draw_fit(ax, curve[curve["unit"] == unit], "latency_ms", c, unit)
-    set_level_scale(ax, panel)
+    set_level_scale(ax, panel, points["level"].to_numpy())
     ax.set_ylim(bottom=0)
     handles, names = ax.get_legend_handles_labels()
     if len(colours) == 1:

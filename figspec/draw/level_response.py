@@ -48,7 +48,7 @@ def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LevelResponsePanel,
                     transform=ax.get_xaxis_transform(), gid=f"threshold:{unit}")
     if panel.subtract_baseline:
         ax.axhline(0.0, color="0.6", linewidth=ctx.style.axes.line_pt, zorder=0)
-    set_level_scale(ax, panel)
+    set_level_scale(ax, panel, points["level"].to_numpy())
     if not panel.subtract_baseline:
         ax.set_ylim(bottom=0)
     handles, names = ax.get_legend_handles_labels()
