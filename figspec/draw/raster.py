@@ -33,12 +33,27 @@ def draw(axes: dict, table: pd.DataFrame, panel: RasterPanel, ctx: DrawContext) 
         n_trials = int(table["n_trials"].iloc[lo])
         spikes = ~np.isnan(times)
         ax.add_patch(PathPatch(tick_path(times[spikes], rows[spikes].astype(float), half), fill=False,
-                               edgecolor=style.raster.colour, linewidth=style.raster.tick_width_pt,
+                               edgecolor=style.raster.colour, linewidth=tick_width(ax, n_trials, style),
                                capstyle="butt", gid="raster"))
         ax.set_ylim(n_trials - 0.5, -0.5)
         ax.set_xlim(*panel.window_ms)
         ax.set_yticks([])
         ax.spines["left"].set_visible(False)
+
+
+TICK_ASPECT = 2.5      # a tick at least this many times as long as it is wide reads as a tick, not a dot
+THINNEST_PT = 0.25     # no thinner than journals' thinnest printed line (Nature's figure guide: 0.25 pt)
+
+
+def tick_width(ax, n_trials: int, style) -> float:
+    """The style's tick width, made thinner (down to 0.25 pt) where trials are so close that
+    ticks of that width would print as dots: a tick stays ``TICK_ASPECT`` times as long as wide.
+    The axes' height is its grid share before the layout engine takes room for labels (about
+    a fifth, common practice)."""
+    sub = ax.get_figure(root=False)
+    height_pt = ax.get_position().height * sub.bbox.height / sub.dpi * 72 * 0.8
+    length_pt = height_pt / max(n_trials, 1) * style.raster.tick_height
+    return float(min(style.raster.tick_width_pt, max(THINNEST_PT, length_pt / TICK_ASPECT)))
 
 
 def cell_rates(table: pd.DataFrame) -> np.ndarray:

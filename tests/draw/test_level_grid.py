@@ -112,3 +112,15 @@ def test_figure_has_the_declared_physical_size(drawn):
     resolved, _, fig = drawn
     w, h = fig.get_size_inches() * 25.4
     assert (w, h) == pytest.approx((resolved.spec.model.figure.width_mm, resolved.spec.model.figure.height_mm))
+
+
+def test_raster_ticks_read_as_ticks_not_dots(drawn):
+    """At the demo's 30 trials per row a tick at the style's 0.6 pt would be about as long as
+    wide; its width is lowered (not below 0.25 pt) so each tick is 2.5 times as long as wide."""
+    _, _, fig = drawn
+    for row in grid(fig):
+        [patch] = [p for p in row[0].patches if p.get_gid() == "raster"]
+        height_pt = row[0].get_window_extent().height / fig.dpi * 72
+        length_pt = height_pt / 30 * 0.8
+        assert 0.25 <= patch.get_linewidth() <= 0.6
+        assert length_pt / patch.get_linewidth() >= 2.0          # the layout takes about a fifth less
