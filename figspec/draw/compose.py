@@ -155,10 +155,12 @@ def _mark(plan: PanelPlan, target, spec: FigureFile, ctx: DrawContext, appearanc
                 colour, alpha = appearance[float(window["level"])]
                 mark_stimulus(target[key], window, colour, alpha, ctx.style, mark)
         return
-    top = stim.loc[stim["level"].idxmax()]
+    # one window for every level overlaid: in the faintest level's shade, so the lines over it
+    # (one per level, in their own colours) stay legible; the key gives each level's shade
+    lowest = stim.loc[stim["level"].idxmin()]
     window = pd.Series({"start_ms": stim["start_ms"].min(), "start_max_ms": stim["start_max_ms"].max(),
                         "stop_min_ms": stim["stop_min_ms"].min(), "stop_max_ms": stim["stop_max_ms"].max()})
-    colour, alpha = appearance[float(top["level"])]
+    colour, alpha = appearance[float(lowest["level"])]
     mark_stimulus(target, window, colour, alpha, ctx.style, mark)
 
 

@@ -36,8 +36,11 @@ def figure_files(fig: "Figure", style: Style, formats: Iterable[str], dpi: int, 
                  provenance: str = "") -> dict[str, bytes]:
     """``{format: bytes}`` of a drawn figure, rendered inside its style's context (tick labels
     and font embedding are settled when the file is written)."""
+    # PNG first: the layout engine runs at every save, so the PNG is the same whichever other
+    # formats are written with it (and a PNG-only render matches the full one)
+    order = sorted(formats, key=lambda fmt: fmt != "png")
     with styled(style), missing_glyphs():
-        return {fmt: figure_bytes(fig, fmt, dpi, software, provenance) for fmt in formats}
+        return {fmt: figure_bytes(fig, fmt, dpi, software, provenance) for fmt in order}
 
 
 CLIP_ID = re.compile(rb"\bp[0-9a-f]{10}\b")
