@@ -74,6 +74,8 @@ def _parser() -> argparse.ArgumentParser:
     comp.add_argument("--dir", default="figure_baselines", help="baseline folder (default: figure_baselines)")
     comp.add_argument("--tolerance", type=float, default=1.0, help="largest RMS difference (0-255) that passes")
     comp.add_argument("-o", "--outdir", default="figure_comparison", help="actual, expected and difference images")
+    schema = sub.add_parser("schema", help="write the JSON Schema of a spec file (for editor completion)")
+    schema.add_argument("-o", "--output", metavar="FILE", help="write it here (default: print it)")
     dif = sub.add_parser("diff", help="show what changed between two versions of a spec")
     dif.add_argument("spec", metavar="SPEC", help="the new version")
     which = dif.add_mutually_exclusive_group(required=True)
@@ -99,6 +101,15 @@ def run(argv: Sequence[str] | None = None) -> int:
         return _review(args)
     if args.command == "render":
         return _render(args)
+    if args.command == "schema":
+        from figspec.spec.schema import schema_text
+
+        if args.output:
+            Path(args.output).write_text(schema_text(), encoding="utf-8")
+            print(f"wrote {args.output}")
+        else:
+            sys.stdout.write(schema_text())
+        return EXIT_OK
     failed = False
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", FigspecWarning)

@@ -163,4 +163,4 @@ def _colormap(value: str) -> str:
     return value
 
 
-ColourMap = Annotated[str, AfterValidator(_colormap)]
+ColourMap = Annotated[str, AfterValidator(_colormap), Field(json_schema_extra={"enum": list(SEQUENTIAL_MAPS)})]

@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from typing import Annotated, Any, Literal, Union
 
-from pydantic import Discriminator, Field, Tag, field_validator, model_validator
+from pydantic import AfterValidator, Discriminator, Field, Tag, model_validator
 
 from figspec.spec.fields import Frozen, Name, WindowMs
 from figspec.spec.selection import TrialSelection
@@ -24,16 +24,18 @@ def _as_list(value: Any) -> Any:
     return [value] if isinstance(value, str) else value
 
 
+# one column name, or a list of them (a key of several columns); always a list once validated
+ColumnOrColumns = Annotated[Union[Annotated[str, Field(min_length=1)], Columns], AfterValidator(_as_list)]
+
+
 class SpikeColumns(Frozen):
     """Column names in the spike table (one row per spike). ``trial`` names the trial key: one
     column or several (e.g. ``["level_db", "trial"]`` when trial numbers restart per level)."""
 
     unit: str = "unit"
-    trial: Columns = ["trial"]
+    trial: ColumnOrColumns = ["trial"]
     time: str = "time"
     level: str | None = None
-
-    _key = field_validator("trial", mode="before")(_as_list)
 
 
 class TrialColumns(Frozen):
@@ -45,7 +47,7 @@ class TrialColumns(Frozen):
     align to (name -> column); ``unit`` is for trials that belong to one unit each.
     """
 
-    trial: Columns = ["trial"]
+    trial: ColumnOrColumns = ["trial"]
     level: str = "level"
     onset: str | None = None
     offset: str | None = None
@@ -53,8 +55,6 @@ class TrialColumns(Frozen):
     stop: str | None = None
     events: dict[Name, str] = Field(default_factory=dict)
     unit: str | None = None
-
-    _key = field_validator("trial", mode="before")(_as_list)
 
 
 class SourceBase(Frozen):
