@@ -157,3 +157,12 @@ def test_dotted_spec_names_keep_their_whole_name(tmp_path, cli):
     assert ran.returncode == 0, ran.stderr
     assert sorted(p.name for p in (tmp_path / "out").iterdir()) == ["fig2.v1.png", "fig2.v1_data", "fig2.v2.png",
                                                                      "fig2.v2_data"]
+
+
+def test_a_bad_profile_or_style_option_is_blamed_on_the_option(cli):
+    from helpers import DEMO_SPEC
+
+    ran = cli("check", DEMO_SPEC, "--profile", "nosuch")
+    assert ran.returncode == 2 and ran.stderr.startswith("--profile nosuch: no journal profile named 'nosuch'")
+    ran = cli("check", DEMO_SPEC, "--style", "nosuch")
+    assert ran.returncode == 2 and ran.stderr.startswith("--style nosuch: no style named 'nosuch'")

@@ -20,7 +20,7 @@ def profile(resolved: Resolved, name: str | None) -> Profile | None:
         try:
             return load_profile(name, resolved.spec.folder)
         except UserError as err:
-            raise type(err)([replace(p, loc=(), message=f"--journal {name}: {p.message}") if p.loc == ("figure", "journal")
+            raise type(err)([replace(p, loc=(), message=f"--profile {name}: {p.message}") if p.loc == ("figure", "journal")
                              else p for p in err.problems]) from None
     name = resolved.spec.model.figure.journal
     if name is None:
