@@ -46,14 +46,24 @@ def _formats(text: str | None) -> list[str] | None:
     return formats
 
 
+class _Help(argparse.RawDescriptionHelpFormatter):
+    """Help that shows each option's default (where it has one) and keeps the examples' lines."""
+
+    def _get_help_string(self, action: argparse.Action) -> str:
+        text = action.help or ""
+        if action.option_strings and "default" not in text and action.default not in (None, False, argparse.SUPPRESS):
+            text += " (default: %(default)s)"
+        return text
+
+
 def _parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(prog="figspec", description="Render spike raster and rate figures "
                                      "from reviewable TOML specs.")
     parser.add_argument("--version", action="version", version=f"figspec {__version__}")
     sub = parser.add_subparsers(dest="command", required=True)
-    render = sub.add_parser("render", help="render specs (files or folders of *.toml) to figures")
+    render = sub.add_parser("render", formatter_class=_Help, epilog='examples:\n  figspec render specs -o figures\n  figspec render specs/fig2.toml --format pdf --style projected --force', help="render specs (files or folders of *.toml) to figures")
     render.add_argument("specs", nargs="+", metavar="SPEC_OR_FOLDER")
-    render.add_argument("-o", "--outdir", default="figures", help="output folder (default: figures)")
+    render.add_argument("-o", "--outdir", default="figures", help="output folder")
     render.add_argument("--format", dest="formats", metavar="LIST",
                         help="comma-separated formats, overriding the specs' (svg,pdf,png)")
     render.add_argument("--style", metavar="NAME", help="render in this style instead of the specs' own")
@@ -63,20 +73,20 @@ def _parser() -> argparse.ArgumentParser:
                         help="render every spec, also those whose outputs are up to date")
     render.add_argument("--scheduler", metavar="ADDRESS",
                         help="run the renders on this Dask distributed scheduler (needs figspec[cluster])")
-    check = sub.add_parser("check", help="validate specs and their data; draw nothing")
+    check = sub.add_parser("check", formatter_class=_Help, epilog='examples:\n  figspec check specs\n  figspec check specs/fig2.toml --profile nature --strict', help="validate specs and their data; draw nothing")
     check.add_argument("specs", nargs="+", metavar="SPEC")
     check.add_argument("--style", metavar="NAME", help="check in this style instead of the specs' own")
-    snap = sub.add_parser("snapshot", help="store baseline images (and hashes) of specs")
+    snap = sub.add_parser("snapshot", formatter_class=_Help, epilog='examples:\n  figspec snapshot specs --dir tests/figure_baselines', help="store baseline images (and hashes) of specs")
     snap.add_argument("specs", nargs="+", metavar="SPEC_OR_FOLDER")
-    snap.add_argument("--dir", default="figure_baselines", help="baseline folder (default: figure_baselines)")
-    comp = sub.add_parser("compare", help="re-render specs and compare with their baselines (exit 3 if any differs)")
+    snap.add_argument("--dir", default="figure_baselines", help="baseline folder")
+    comp = sub.add_parser("compare", formatter_class=_Help, epilog='examples:\n  figspec compare specs --dir tests/figure_baselines\n  figspec compare specs/fig2.toml --tolerance 2', help="re-render specs and compare with their baselines (exit 3 if any differs)")
     comp.add_argument("specs", nargs="+", metavar="SPEC_OR_FOLDER")
-    comp.add_argument("--dir", default="figure_baselines", help="baseline folder (default: figure_baselines)")
+    comp.add_argument("--dir", default="figure_baselines", help="baseline folder")
     comp.add_argument("--tolerance", type=float, default=1.0, help="largest RMS difference (0-255) that passes")
     comp.add_argument("-o", "--outdir", default="figure_comparison", help="actual, expected and difference images")
-    schema = sub.add_parser("schema", help="write the JSON Schema of a spec file (for editor completion)")
+    schema = sub.add_parser("schema", formatter_class=_Help, epilog='examples:\n  figspec schema -o specs/spec.schema.json', help="write the JSON Schema of a spec file (for editor completion)")
     schema.add_argument("-o", "--output", metavar="FILE", help="write it here (default: print it)")
-    dif = sub.add_parser("diff", help="show what changed between two versions of a spec")
+    dif = sub.add_parser("diff", formatter_class=_Help, epilog='examples:\n  figspec diff specs/fig2.toml --rev main\n  figspec diff specs/fig2.toml --old old/fig2.toml', help="show what changed between two versions of a spec")
     dif.add_argument("spec", metavar="SPEC", help="the new version")
     which = dif.add_mutually_exclusive_group(required=True)
     which.add_argument("--old", metavar="SPEC", help="the old version, as a file")
@@ -88,7 +98,7 @@ def _parser() -> argparse.ArgumentParser:
         sub_parser.add_argument("--profile", metavar="NAME",
                                 help="check the figure against this journal profile instead (implies --journal), "
                                      "e.g. nature, jneurosci, cell, or a path to a profile .toml")
-        sub_parser.add_argument("--strict", action="store_true", help="journal check findings exit 2")
+        sub_parser.add_argument("--strict", action="store_true", help="layout and journal check findings exit 2")
     return parser
 
 
@@ -196,8 +206,9 @@ def _review(args: argparse.Namespace) -> int:
         if args.command == "compare":
             results = review.compare(_spec_files(args.specs), Path(args.dir), args.tolerance, Path(args.outdir))
             for result in results:
-                print(f"{result.image.name}: {'same' if result.passed else 'DIFFERS'}: {result.image.message}")
-            print(f"{sum(not r.passed for r in results)} of {len(results)} figures differ; see {args.outdir}")
+                print(f"{result.image.name}: {'unchanged' if result.passed else 'CHANGED'} ({result.image.message})")
+            changed = sum(not r.passed for r in results)
+            print(f"{changed} of {len(results)} figures changed beyond the tolerance; images and summary in {args.outdir}")
             return EXIT_OK if all(r.passed for r in results) else EXIT_DIFFERS
         lines = review.diff(Path(args.spec), Path(args.old) if args.old else None, args.rev, Path(args.outdir))
         print("\n".join(lines))

@@ -58,6 +58,9 @@ def compare(specs: Sequence[Path], folder: Path, tolerance: float, results: Path
     to ``results``, plus ``summary.txt``."""
     folder, results = Path(folder), Path(results)
     results.mkdir(parents=True, exist_ok=True)
+    for pattern in ("*.new.png", "*.baseline.png", "*.difference.png", "summary.txt"):   # a run's own files
+        for stale in results.glob(pattern):
+            stale.unlink()
     stored = json.loads((folder / FINGERPRINTS).read_text()) if (folder / FINGERPRINTS).is_file() else {}
     out = []
     for spec in specs:
@@ -72,7 +75,7 @@ def compare(specs: Sequence[Path], folder: Path, tolerance: float, results: Path
         shutil.copyfile(expected, results / f"{stem}.baseline.png")
         same = {fmt: stored.get(stem, {}).get(fmt) == sha256(data) for fmt, data in files.items()}
         out.append(Comparison(rms_difference(expected, actual, tolerance, results / f"{stem}.difference.png"), same))
-    lines = [f"{c.image.name}: {'same' if c.passed else 'DIFFERS'}: {c.image.message}; identical bytes: "
+    lines = [f"{c.image.name}: {'unchanged' if c.passed else 'CHANGED'} ({c.image.message}); identical bytes: "
              + ", ".join(f"{fmt} {'yes' if ok else 'no'}" for fmt, ok in c.identical_bytes.items()) for c in out]
     (results / "summary.txt").write_text("\n".join(lines) + "\n")
     return out

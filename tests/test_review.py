@@ -131,10 +131,10 @@ def test_compare_passes_unchanged_and_catches_a_2_ms_bin_change(tmp_path):
     spec = write_spec(tmp_path, SMALL_SPEC, "fig.toml")
     assert figspec("snapshot", spec, "--dir", tmp_path / "base").returncode == 0
     same = figspec("compare", spec, "--dir", tmp_path / "base", "-o", tmp_path / "cmp")
-    assert same.returncode == 0 and "fig: same" in same.stdout
+    assert same.returncode == 0 and "fig: unchanged (RMS" in same.stdout
     spec.write_text(spec.read_text().replace("bin_ms = 10", "bin_ms = 8"))
     differs = figspec("compare", spec, "--dir", tmp_path / "base", "-o", tmp_path / "cmp")
-    assert differs.returncode == 3 and "fig: DIFFERS: RMS" in differs.stdout
+    assert differs.returncode == 3 and "fig: CHANGED (RMS" in differs.stdout
     assert {"fig.new.png", "fig.baseline.png", "fig.difference.png", "summary.txt"} <= \
         {p.name for p in (tmp_path / "cmp").iterdir()}
 
@@ -155,3 +155,28 @@ def test_diff_against_a_git_revision_reports_the_key_change(tmp_path):
     folder = tmp_path / "d" / "fig_diff"
     assert {"old.png", "new.png", "side_by_side.png", "difference.png", "summary.txt"} <= {p.name for p in folder.iterdir()}
     assert not list(specs.glob(".*.toml"))                        # the revision's copy was removed
+
+
+def test_compare_clears_its_own_files_of_earlier_runs(tmp_path):
+    spec = write_spec(tmp_path, SMALL_SPEC, "fig.toml")
+    assert figspec("snapshot", spec, "--dir", tmp_path / "base").returncode == 0
+    results = tmp_path / "cmp"
+    results.mkdir()
+    for stale in ("gone.new.png", "gone.baseline.png", "gone.difference.png"):
+        (results / stale).write_bytes(b"from an earlier run")
+    (results / "notes.txt").write_text("the user's own file")
+    assert figspec("compare", spec, "--dir", tmp_path / "base", "-o", results).returncode == 0
+    assert sorted(p.name for p in results.iterdir()) == ["fig.baseline.png", "fig.new.png", "notes.txt", "summary.txt"]
+
+
+def test_every_command_shows_examples_and_defaults(capsys):
+    from figspec.cli import run
+
+    for command in ("render", "check", "snapshot", "compare", "diff", "schema"):
+        with pytest.raises(SystemExit):
+            run([command, "--help"])
+        text = capsys.readouterr().out
+        assert "examples:\n  figspec " + command in text
+    with pytest.raises(SystemExit):
+        run(["compare", "--help"])
+    assert "(default: 1.0)" in " ".join(capsys.readouterr().out.split())      # wrapped at any width
