@@ -15,7 +15,7 @@ def test_check_imports_neither_matplotlib_nor_scipy():
 
 
 def test_render_imports_scipy_only_for_a_panel_that_needs_it(tmp_path):
-    """A raster and a plain histogram need no scipy; a fitted summary panel does."""
+    """A raster and a plain histogram need no scipy (only the panels that fit or test import it)."""
     from helpers import SMALL_SPEC, write_spec
 
     plain = write_spec(tmp_path, SMALL_SPEC, "plain.toml")
