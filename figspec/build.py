@@ -53,19 +53,14 @@ class BuildOptions:
 
 def build_record(spec_path: Path, formats: Sequence[str] | None, style: str | None) -> dict:
     """What decides a spec's outputs, without loading its data: input hashes, versions, formats."""
-    from figspec.output.provenance import code_sha256, input_files, versions
+    from figspec.output.provenance import build_inputs, code_sha256, input_files, versions
     from figspec.spec.loader import load_spec
-    from figspec.spec.style_files import resolve_style
+    from figspec.steps.resolve import load_style
+    from figspec.steps.save import input_paths
 
     spec = load_spec(spec_path)
-    name, folder = (style, Path.cwd()) if style else (spec.model.figure.style, spec.folder)
-    style_sources = resolve_style(name, folder, spec.model.style, spec.path, spec.text).sources
-    files = [("spec", spec.path)]
-    for source_name, src in spec.model.sources.items():
-        files += [(f"data:{source_name}:{role}", spec.folder / path) for role, path in src.files().items()]
-    files += [(f"style:{s.path.stem}", s.path) for s in style_sources if s.prefix == ()]
-    inputs = {i["role"]: i["sha256"] for i in input_files([(r, p) for r, p in files if Path(p).is_file()])}
-    return {"inputs": inputs, "versions": versions(), "code": code_sha256(),
+    paths = [(role, path) for role, path in input_paths(spec, load_style(spec, style).sources) if Path(path).is_file()]
+    return {"inputs": build_inputs(input_files(paths)), "versions": versions(), "code": code_sha256(),
             "formats": sorted(formats or spec.model.figure.formats)}
 
 

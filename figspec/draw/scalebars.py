@@ -11,17 +11,14 @@ def bar_length(span: float) -> float:
     return top if top <= span / 2 else top / 2
 
 
-def reserve_label_space(ax, ctx) -> None:
+def reserve_label_space(ax, renderer) -> None:
     """Keep the room the axes' x tick labels and label took (so rows line up with a neighbouring
     panel that has axes) with an empty, textless mark at their lowest point: no invisible text
     that a PDF reader could select or a screen reader read."""
     from matplotlib.patches import Rectangle
     from matplotlib.transforms import offset_copy
 
-    from matplotlib.backends.backend_agg import RendererAgg
-
     fig = ax.get_figure(root=True)
-    renderer = RendererAgg(int(fig.bbox.width), int(fig.bbox.height), fig.dpi)
     labels = ax.xaxis.get_tightbbox(renderer)              # tick labels and label as they would be drawn
     if labels is None:
         return
@@ -38,12 +35,16 @@ def draw_scale_bars(axes: list, plan, ctx) -> None:
     panel's y values have a unit (a rate), a y bar (``rate_bar``) at the lower right of the
     last axes, labelled with length and unit. Bars are in data units, so they measure exactly
     what they say."""
+    from matplotlib.backends.backend_agg import RendererAgg
+
     panel = plan.panel
     width = ctx.style.scale_bar.line_pt
+    fig = axes[0].get_figure(root=True)
+    renderer = RendererAgg(int(fig.bbox.width), int(fig.bbox.height), fig.dpi)   # to measure the labels' room
     for ax in axes:
         for spine in ax.spines.values():
             spine.set_visible(False)
-        reserve_label_space(ax, ctx)
+        reserve_label_space(ax, renderer)
         ax.tick_params(left=False, bottom=False, labelleft=False, labelbottom=False)
         ax.set_xlabel("")
         if plan.labels.y_unit:                  # where y has a unit, its zero stays visible

@@ -53,14 +53,14 @@ def resolve(spec: LoadedSpec, style: str | None = None, frames: dict | None = No
     """The resolved spec (``style`` overrides the spec's own style; ``frames`` gives sources'
     tables as DataFrames instead of files: source name -> (spikes, trials))."""
     resolved_style = load_style(spec, style)
-    scale = 1.0
+    scale, own = 1.0, None
     if style and style != spec.model.figure.style:
         own = load_style(spec, None).style
         scale = reflow_scale(spec, own, resolved_style.style)
         resolved_style = replace(resolved_style, style=resolved_style.style.with_sizes_of(own, scale))
     figure = spec.model.figure
     if scale != 1.0:                  # the spec's own page (its width, or its style's), scaled
-        own_width = figure.width_mm or load_style(spec, None).style.figure.width_mm
+        own_width = figure.width_mm or own.figure.width_mm
         figure = figure.model_copy(update={"width_mm": min(own_width * scale, 2000.0),
                                            "height_mm": min(figure.height_mm * scale, 2000.0)})
     elif figure.width_mm is None:     # the style's default width

@@ -26,14 +26,17 @@ if TYPE_CHECKING:
 SOFTWARE = f"figspec {__version__}"
 
 
-def inputs(resolved: Resolved) -> list[dict]:
-    """Every file the figure was made from (spec, each source's files, style files), with hashes."""
-    spec = resolved.spec
+def input_paths(spec, style_sources) -> list[tuple[str, Path]]:
+    """(role, path) of every file a figure is made from: the spec, each source's files, the style files."""
     files = [("spec", spec.path)]
     for name, src in spec.model.sources.items():
         files += [(f"data:{name}:{role}", spec.folder / path) for role, path in src.files().items()]
-    files += [(f"style:{source.path.stem}", source.path) for source in resolved.style_sources if source.prefix == ()]
-    return input_files(files)
+    return files + [(f"style:{source.path.stem}", source.path) for source in style_sources if source.prefix == ()]
+
+
+def inputs(resolved: Resolved) -> list[dict]:
+    """Every file the figure was made from, with hashes."""
+    return input_files(input_paths(resolved.spec, resolved.style_sources))
 
 
 def figures(resolved: Resolved, fig: "Figure", formats: Sequence[str], provenance: str = "") -> dict[str, bytes]:
