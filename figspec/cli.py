@@ -86,6 +86,12 @@ def _parser() -> argparse.ArgumentParser:
     comp.add_argument("-o", "--outdir", default="figure_comparison", help="actual, expected and difference images")
     schema = sub.add_parser("schema", formatter_class=_Help, epilog='examples:\n  figspec schema -o specs/spec.schema.json', help="write the JSON Schema of a spec file (for editor completion)")
     schema.add_argument("-o", "--output", metavar="FILE", help="write it here (default: print it)")
+    dra = sub.add_parser("draft", formatter_class=_Help, epilog='examples:\n  figspec draft data/spikes.csv data/trials.csv -o specs/unit1.toml\n  figspec draft data/session.nwb -o specs/session.toml', help="write a first spec from a spike table and a trial table (every guess a comment)")
+    dra.add_argument("spikes", metavar="SPIKES", help="the spike table (CSV, Parquet) or an NWB file")
+    dra.add_argument("trials", metavar="TRIALS", nargs="?", help="the trial table (leave out for an NWB file, or when "
+                     "the spike table has level and trial columns)")
+    dra.add_argument("-o", "--output", metavar="SPEC", required=True, help="the spec file to write")
+    dra.add_argument("--force", action="store_true", help="overwrite SPEC if it exists")
     dif = sub.add_parser("diff", formatter_class=_Help, epilog='examples:\n  figspec diff specs/fig2.toml --rev main\n  figspec diff specs/fig2.toml --old old/fig2.toml', help="show what changed between two versions of a spec")
     dif.add_argument("spec", metavar="SPEC", help="the new version")
     which = dif.add_mutually_exclusive_group(required=True)
@@ -111,6 +117,8 @@ def run(argv: Sequence[str] | None = None) -> int:
         return _review(args)
     if args.command == "render":
         return _render(args)
+    if args.command == "draft":
+        return _draft(args)
     if args.command == "schema":
         from figspec.spec.schema import schema_text
 
@@ -193,6 +201,37 @@ def _render(args: argparse.Namespace) -> int:
     if len(results) > 1:
         print(summary_table(results))
     return worst([r.exit for r in results])
+
+
+def _draft(args: argparse.Namespace) -> int:
+    """``draft``: survey the data, write the spec, check it, and list the questions left."""
+    from figspec import pipeline
+    from figspec.draft import draft
+
+    target = Path(args.output)
+    try:
+        if target.exists() and not args.force:
+            raise UserError(Problem("exists already; choose another name or add --force", file=str(target)))
+        if target.suffix != ".toml":
+            raise UserError(Problem("a spec file name ends in .toml", file=str(target)))
+        text, survey = draft(Path(args.spikes), Path(args.trials) if args.trials else None, target)
+        target.parent.mkdir(parents=True, exist_ok=True)
+        target.write_text(text, encoding="utf-8")
+        print(f"wrote {target}: {len(survey.units)} units, {len(survey.levels)} levels; every guess is a "
+              "'# guess:' comment")
+        for question in survey.questions:
+            print(f"question: {question}")
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always", FigspecWarning)
+            pipeline.check(target)
+        for message in dict.fromkeys(str(w.message) for w in caught if issubclass(w.category, FigspecWarning)):
+            print(f"{target}: warning: {message}", file=sys.stderr)
+    except UserError as err:
+        for problem in err.problems:
+            print(problem.format(), file=sys.stderr)
+        return EXIT_USER
+    print(f"{target} checks; draw it with: figspec render {target}")
+    return EXIT_OK
 
 
 def _review(args: argparse.Namespace) -> int:

@@ -123,3 +123,31 @@ def figspec_warnings():
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", FigspecWarning)
         yield caught
+
+
+def invented_tables(rng, time_unit="s", clock="session", restart=False, names=None):
+    """Invented (spike frame, trial frame) in a lab's layout: 4 levels x 10 trials of 0.5 s, a 50-ms stimulus 0.1 s in."""
+    import numpy as np
+    names = names or {}
+    scale = 1.0 if time_unit == "s" else 1000.0
+    levels = np.repeat([0.0, 20.0, 40.0, 60.0], 10)
+    order = rng.permutation(levels.size)
+    start = np.arange(levels.size) * 0.5 if clock == "session" else np.zeros(levels.size)
+    onset = start + 0.1 + rng.uniform(0, 0.005, levels.size)
+    trial_no = (np.tile(np.arange(1, 11), 4) if restart else np.arange(1, levels.size + 1))[order]
+    lv = levels[order]
+    trials = pd.DataFrame({names.get("trial", "trial"): trial_no, names.get("level", "level_db"): lv,
+                           names.get("onset", "onset"): onset * scale, names.get("offset", "offset"): (onset + 0.05) * scale,
+                           names.get("start", "start"): start * scale, names.get("stop", "stop"): (start + 0.5) * scale})
+    rows = []
+    for i in range(levels.size):
+        n = rng.poisson(3 + lv[i] / 10)
+        times = start[i] + rng.uniform(0, 0.5, n)
+        rows += [("u7", trial_no[i], lv[i], t * scale) for t in times]
+    spikes = pd.DataFrame(rows, columns=[names.get("unit", "unit"), names.get("trial", "trial"), "lvl_copy",
+                                         names.get("time", "time")]).sample(frac=1, random_state=2)
+    if restart:
+        spikes = spikes.rename(columns={"lvl_copy": names.get("level", "level_db")})
+    else:
+        spikes = spikes.drop(columns="lvl_copy")
+    return spikes, trials

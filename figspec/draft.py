@@ -1,0 +1,189 @@
+"""``figspec draft``: a first spec written from a spike table and a trial table.
+
+The survey (:mod:`figspec.data.survey`) recognises the columns and guesses the time unit and the
+clock; this module writes them as a spec whose every guessed line carries a ``# guess:``
+comment saying how it was reached, and whose open points are ``# question:`` comments. The
+spec draws a level grid (raster | rate, one row per level) and the response and latency against
+level of the unit with the most spikes, and renders as it is.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import re
+from pathlib import Path
+
+from figspec.data.survey import Guess, Survey, read_any, read_nwb, survey
+
+NICE_STEPS_MS = (1, 2, 5, 10, 20, 25, 50, 100, 200, 250, 500, 1000, 2000, 5000)
+
+
+def _toml(value) -> str:
+    """A TOML literal of a string, number or list of them."""
+    if isinstance(value, (list, tuple)):
+        return "[" + ", ".join(_toml(v) for v in value) + "]"
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, (int, float)):
+        return f"{value:g}"
+    return json.dumps(str(value), ensure_ascii=False)
+
+
+def _key(name: str) -> str:
+    return name if re.fullmatch(r"[A-Za-z0-9_-]+", name) else json.dumps(name)
+
+
+def _line(key: str, value, guess: Guess | None = None, note: str | None = None) -> str:
+    """``key = value`` with its comments: the guess's reasoning and question, or a plain note."""
+    text = f"{_key(key)} = {_toml(value)}"
+    comments = []
+    if guess is not None:
+        comments.append(f"guess: {guess.how}")
+        if guess.question:
+            comments.append(f"question: {guess.question}")
+    elif note:
+        comments.append(note)
+    if not comments:
+        return text
+    pad = " " * max(1, 28 - len(text))
+    return text + pad + "# " + comments[0] + "".join(f"\n{' ' * (len(text) + len(pad))}# {c}" for c in comments[1:])
+
+
+def _floor_to(value: float, step: float) -> float:
+    return math.floor(value / step + 1e-9) * step
+
+
+def _step_for(span_ms: float) -> float:
+    """A round step of about a tenth of a span (ms)."""
+    return next((s for s in NICE_STEPS_MS if s >= span_ms / 10), NICE_STEPS_MS[-1])
+
+
+def windows(s: Survey) -> dict[str, tuple[float, float]]:
+    """The time window, response window and baseline window (ms from onset) the draft uses:
+    one stimulus duration before the onset and three after it (common practice for a first
+    look, not a rule), cut to what every trial recorded."""
+    stim = s.stimulus_ms or 50.0
+    step = _step_for(stim)
+    before = stim if s.before_ms is None else min(stim, s.before_ms)
+    after = 3 * stim if s.after_ms is None else min(3 * stim, s.after_ms)
+    before, after = _floor_to(before, step) or min(step, before), _floor_to(after, step) or after
+    return {"window": (-before, after), "response": (0.0, min(stim + step, after)), "baseline": (-before, 0.0)}
+
+
+def _relative(path: Path, folder: Path) -> str:
+    return Path(os.path.relpath(Path(path).resolve(), folder.resolve())).as_posix()
+
+
+def _source_name(path: Path) -> str:
+    name = re.sub(r"[^A-Za-z0-9_]+", "_", Path(path).stem).strip("_").lower()
+    return name if name and name[0].isalpha() else f"recording_{name}" if name else "recording"
+
+
+def draft_text(s: Survey, spec_path: Path) -> str:
+    """The spec text for a survey, with paths relative to where the spec will be written."""
+    folder = Path(spec_path).resolve().parent
+    from figspec.spec.schema import SHIPPED
+
+    unit, spikes = s.units[0]
+    units_note = ", ".join(f"{u} ({n:,} spikes)" for u, n in s.units[:8]) + (" ..." if len(s.units) > 8 else "")
+    level_values = ", ".join(f"{v:g} ({n})" for v, n in s.levels[:12]) + (" ..." if len(s.levels) > 12 else "")
+    w = windows(s)
+    files = [s.spikes.path] + ([s.trials.path] if s.trials is not None and s.trials.path != s.spikes.path else [])
+    out = [f"#:schema {_relative(SHIPPED, folder)}",
+           f"#  First draft by `figspec draft` from {' and '.join(_relative(p, folder) for p in files)}.",
+           "#  Lines marked 'guess:' are figspec's reading of the files: check each one. Lines marked",
+           "#  'question:' need your answer. The keys are explained in figspec's README.",
+           "", "[figure]",
+           _line("title", f"Unit {unit}", note="question: a title for the figure?"),
+           _line("height_mm", 130), "",
+           "[layout]", _line("rows", 2), _line("columns", 3), _line("widths", [1, 1, 1.2]), "",
+           "[levels]",
+           _line("quantity", "Level", note="question: what was varied (e.g. \"Sound level\", \"Contrast\")?"),
+           _line("unit", s.level_unit.value, s.level_unit),
+           f"#  levels in the data (trials): {level_values}", ""]
+    out += ["[stimulus]"]
+    if s.stimulus_ms is not None:
+        out += [_line("per_trial", True, note="guess: the trial table gives each trial's onset and offset")]
+    else:
+        stop = s.stimulus_ms or 50
+        out += [_line("start_ms", 0, note="question: the stimulus window, ms from the alignment point?"),
+                _line("stop_ms", stop, note="question: 50 ms is a placeholder: how long was the stimulus?")]
+    out += [_line("label", "Stimulus"), ""]
+    out += _source_lines(s, folder)
+    out += _panel_lines(unit, units_note, w)
+    return "\n".join(out) + "\n"
+
+
+def _source_lines(s: Survey, folder: Path) -> list[str]:
+    name = _source_name(s.spikes.path)
+    lines = [f"[sources.{name}]"]
+    if s.spikes.format == "nwb":
+        lines += [_line("format", "nwb"), _line("file", _relative(s.spikes.path, folder))]
+        if s.spikes.unit_names:
+            lines += [_line("unit_names", s.spikes.unit_names, note="guess: the units table's column of names")]
+        tc = s.trial_columns
+        lines += [f"[sources.{name}.trial_columns]"]
+        lines += [_line(role, tc[role].value, tc[role]) for role in ("level", "onset", "offset") if role in tc]
+        return lines + [""]
+    if s.spikes.format != "csv":
+        lines += [_line("format", s.spikes.format)]
+    lines += [_line("spikes", _relative(s.spikes.path, folder))]
+    if s.trials is not None:
+        lines += [_line("trials", _relative(s.trials.path, folder))]
+    if s.spikes.format == "csv" and s.spikes.delimiter != ",":
+        lines += [_line("delimiter", s.spikes.delimiter, note="guess: sniffed from the file's first lines")]
+    lines += [_line("time_unit", s.time_unit.value, s.time_unit)]
+    if s.trials_per_level is not None:
+        lines += [_line("trials_per_level", s.trials_per_level.value, s.trials_per_level)]
+    if s.extent_ms is not None:
+        lines += [_line("extent_ms", s.extent_ms.value, s.extent_ms)]
+    if s.clock.value != "aligned" or s.trials is not None:
+        lines += [_line("clock", s.clock.value, s.clock)]
+    if s.trials is not None and "trial" not in s.spike_columns:
+        lines += [_line("assign_spikes", "by_time", note="guess: no trial column in the spike table: spikes "
+                        "belong to the trial whose start..stop holds them")]
+    lines += ["", f"[sources.{name}.spike_columns]"]
+    for role in ("unit", "trial", "time", "level"):
+        if role in s.spike_columns:
+            lines.append(_line(role, s.spike_columns[role].value, s.spike_columns[role]))
+    if s.trials is not None:
+        lines += ["", f"[sources.{name}.trial_columns]"]
+        for role in ("trial", "level", "onset", "offset", "start", "stop"):
+            if role in s.trial_columns:
+                lines.append(_line(role, s.trial_columns[role].value, s.trial_columns[role]))
+        if s.events:
+            shown = ", ".join(f"{k} = {_toml(v)}" for k, v in s.events.items())
+            lines.append(f"# events = {{ {shown} }}   # other times in the trial table, to align to if you wish")
+    return lines + [""]
+
+
+def _panel_lines(unit: str, units_note: str, w: dict) -> list[str]:
+    window, response, baseline = (list(map(float, w[k])) for k in ("window", "response", "baseline"))
+    step = _step_for(window[1] - window[0])
+    unit_line = _line("unit", unit, note=f"guess: the unit with the most spikes; units: {units_note}")
+    return [
+        "[[panels]]", _line("name", "spikes"), _line("kind", "raster"), unit_line, _line("cell", [1, 1]),
+        _line("span", [2, 1]),
+        _line("window_ms", window, note="guess: one stimulus before the onset, three after, within every trial"),
+        "", "[[panels]]", _line("name", "rate"), _line("kind", "psth"), _line("unit", unit), _line("cell", [1, 2]),
+        _line("span", [2, 1]), _line("window_ms", window),
+        _line("bin_ms", max(1.0, step / 4), note="question: the bin width (ms) you want to show?"),
+        "", "[[panels]]", _line("name", "response"), _line("kind", "level_response"), _line("unit", unit),
+        _line("cell", [1, 3]),
+        _line("response_ms", response, note="guess: the stimulus and one step after it"),
+        _line("baseline_ms", baseline),
+        "", "[[panels]]", _line("name", "latency"), _line("kind", "latency"), _line("unit", unit),
+        _line("cell", [2, 3]), _line("response_ms", response)]
+
+
+def draft(spikes: Path, trials: Path | None, spec_path: Path) -> tuple[str, Survey]:
+    """Survey the files and return the spec text (not yet written) and the survey."""
+    if Path(spikes).suffix.lower() == ".nwb":
+        spike_table, trial_table = read_nwb(Path(spikes))
+        s = survey(spike_table, trial_table)
+        s.trial_columns = {r: g for r, g in s.trial_columns.items() if r in ("level", "onset", "offset")}
+    else:
+        s = survey(read_any(Path(spikes)), read_any(Path(trials)) if trials else None)
+    return draft_text(s, spec_path), s

@@ -1,0 +1,86 @@
+"""``figspec draft``: from a spike table and a trial table to a spec that checks and renders,
+every guess a commented line and every ambiguity a question."""
+
+from __future__ import annotations
+
+import shutil
+
+import pytest
+import tomli
+
+from helpers import SPECS, invented_tables
+
+
+def _guessed_lines(text: str) -> list[str]:
+    """The key lines of the sources' tables (the lines the survey guessed)."""
+    lines, inside = [], False
+    for line in text.splitlines():
+        if line.startswith("["):
+            inside = line.startswith("[sources")
+        elif inside and "=" in line and not line.startswith("#"):
+            lines.append(line)
+    return lines
+
+
+def test_two_demo_csv_files_give_a_spec_that_renders(tmp_path, cli):
+    for name in ("spikes.csv", "trials.csv"):
+        shutil.copy(SPECS / "data" / name, tmp_path / name)
+    ran = cli("draft", "spikes.csv", "trials.csv", "-o", "unit.toml", cwd=tmp_path)
+    assert ran.returncode == 0, ran.stderr
+    assert "unit.toml checks" in ran.stdout
+    text = (tmp_path / "unit.toml").read_text()
+    spec = tomli.loads(text)
+    assert spec["sources"]["spikes"]["clock"] == "session"
+    assert spec["sources"]["spikes"]["time_unit"] == "s"
+    assert [p["kind"] for p in spec["panels"]] == ["raster", "psth", "level_response", "latency"]
+    assert all("# guess:" in line or line.split("=")[0].strip() in ("spikes", "trials")
+               for line in _guessed_lines(text)), _guessed_lines(text)
+    assert "# question:" in text               # the level's reference (dB of what?) is asked
+    rendered = cli("render", "unit.toml", "-o", "out", "--format", "png", cwd=tmp_path)
+    assert rendered.returncode == 0, rendered.stderr
+    assert (tmp_path / "out" / "unit.png").stat().st_size > 10_000
+
+
+@pytest.mark.parametrize("layout", ["trial clock, ms, numbers per level, semicolons",
+                                    "session clock, no trial column", "aligned, no trial table"])
+def test_lab_layouts_give_specs_that_check(tmp_path, cli, rng, layout):
+    if layout.startswith("trial"):
+        spikes, trials = invented_tables(rng, "ms", "trial", restart=True)
+        spikes.to_csv(tmp_path / "s.csv", sep=";", index=False)
+        trials.to_csv(tmp_path / "t.csv", sep=";", index=False)
+        args = ["s.csv", "t.csv"]
+    elif layout.startswith("session"):
+        spikes, trials = invented_tables(rng)
+        spikes.drop(columns="trial").to_csv(tmp_path / "s.csv", index=False)
+        trials.to_csv(tmp_path / "t.csv", index=False)
+        args = ["s.csv", "t.csv"]
+    else:
+        spikes, trials = invented_tables(rng, "ms", restart=True)
+        spikes = spikes.merge(trials[["trial", "level_db", "onset"]], on=["trial", "level_db"])
+        spikes["time"] = spikes["time"] - spikes["onset"]          # ms from onset; trials numbered per level
+        spikes.drop(columns="onset").to_csv(tmp_path / "s.csv", index=False)
+        args = ["s.csv"]
+    ran = cli("draft", *args, "-o", "specs/draft.toml", cwd=tmp_path)
+    assert ran.returncode == 0, ran.stdout + ran.stderr
+    source = next(iter(tomli.loads((tmp_path / "specs" / "draft.toml").read_text())["sources"].values()))
+    assert source["spikes"] == "../s.csv"                  # relative to the spec, not to where it ran
+    if layout.startswith("trial"):
+        assert source["delimiter"] == ";" and source["clock"] == "trial" and source["time_unit"] == "ms"
+        assert source["trial_columns"]["trial"] == ["level_db", "trial"]
+    elif layout.startswith("session"):
+        assert source["assign_spikes"] == "by_time"
+    else:
+        assert source["spike_columns"]["trial"] == ["level_db", "trial"]
+        assert source["trials_per_level"] == 10 and "extent_ms" in source
+        assert "only you know" in ran.stdout               # silent trials cannot be seen: asked
+
+
+def test_draft_does_not_overwrite_and_names_unreadable_data(tmp_path, cli):
+    (tmp_path / "x.toml").write_text("keep me")
+    (tmp_path / "s.csv").write_text("a,b\n1,2\n")
+    ran = cli("draft", "s.csv", "-o", "x.toml", cwd=tmp_path)
+    assert ran.returncode == 2 and "exists already" in ran.stderr
+    assert (tmp_path / "x.toml").read_text() == "keep me"
+    ran = cli("draft", "s.csv", "-o", "y.toml", cwd=tmp_path)
+    assert ran.returncode == 2 and "s.csv" in ran.stderr and "Traceback" not in ran.stderr
+    assert not (tmp_path / "y.toml").exists()
