@@ -185,6 +185,10 @@ def build(specs: Sequence[Path], options: BuildOptions, jobs: int = 1, runner: R
             futures = [pool.submit(render_one, name, options, why) for name, why in stale.items()]
             for future in as_completed(futures):
                 finished(future.result())
+    if Path(options.outdir).is_dir():
+        from figspec.output.review_page import write_index
+
+        write_index(Path(options.outdir))      # every figure of the folder, its legend and files
     return [done[name] for name in names]
 
 

@@ -200,6 +200,8 @@ def _render(args: argparse.Namespace) -> int:
         return EXIT_USER
     if len(results) > 1:
         print(summary_table(results))
+    if (Path(args.outdir) / "index.html").is_file():
+        print(f"index of every figure in {args.outdir}: {Path(args.outdir) / 'index.html'}")
     return worst([r.exit for r in results])
 
 
@@ -247,11 +249,15 @@ def _review(args: argparse.Namespace) -> int:
             for result in results:
                 print(f"{result.image.name}: {'unchanged' if result.passed else 'CHANGED'} ({result.image.message})")
             changed = sum(not r.passed for r in results)
-            print(f"{changed} of {len(results)} figures changed beyond the tolerance; images and summary in {args.outdir}")
+            print(f"{changed} of {len(results)} figures changed beyond the tolerance; review page "
+                  f"{Path(args.outdir) / review.PAGE}, images and summary.txt beside it")
             return EXIT_OK if all(r.passed for r in results) else EXIT_DIFFERS
         lines = review.diff(Path(args.spec), Path(args.old) if args.old else None, args.rev, Path(args.outdir))
         print("\n".join(lines))
-        print(f"images in {Path(args.outdir) / (Path(args.spec).stem + '_diff')}")
+        from figspec.output.names import output_stem
+
+        print(f"review page {Path(args.outdir) / (output_stem(Path(args.spec)) + '_diff') / review.PAGE}; "
+              "images and summary.txt beside it")
         return EXIT_OK
     except UserError as err:
         for problem in err.problems:

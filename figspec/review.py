@@ -9,7 +9,7 @@ from __future__ import annotations
 import json
 import shutil
 import subprocess
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import Sequence
 
@@ -18,10 +18,12 @@ import tomli
 from figspec import pipeline
 from figspec.output.names import output_stem
 from figspec.errors import Problem, UserError
-from figspec.output.compare import ImageResult, rms_difference, side_by_side, table_changes
+from figspec.output.compare import ImageResult, rms_difference, side_by_side, table_diffs
 from figspec.output.files import write_all
 from figspec.output.report import sha256
+from figspec.output.review_page import FigureReview, review_page
 from figspec.spec.diff import key_changes
+from figspec.steps.save import input_paths
 
 FINGERPRINTS = "fingerprints.json"   # sha256 of every format of each baseline
 FORMATS = ("png", "svg", "pdf")
@@ -58,27 +60,57 @@ def compare(specs: Sequence[Path], folder: Path, tolerance: float, results: Path
     to ``results``, plus ``summary.txt``."""
     folder, results = Path(folder), Path(results)
     results.mkdir(parents=True, exist_ok=True)
-    for pattern in ("*.new.png", "*.baseline.png", "*.difference.png", "summary.txt"):   # a run's own files
+    for pattern in ("*.new.png", "*.baseline.png", "*.difference.png", "summary.txt", PAGE):   # a run's own files
         for stale in results.glob(pattern):
             stale.unlink()
     stored = json.loads((folder / FINGERPRINTS).read_text()) if (folder / FINGERPRINTS).is_file() else {}
-    out = []
+    out, reviews = [], []
     for spec in specs:
         stem = output_stem(spec)
-        files, _ = pipeline.render_in_memory(pipeline.check(spec), FORMATS)
+        resolved = pipeline.check(spec)
+        files, _ = pipeline.render_in_memory(resolved, FORMATS)
         actual = results / f"{stem}.new.png"
         write_all({actual: files["png"]})
         expected = folder / f"{stem}.png"
+        data = _data_files(resolved)
         if not expected.is_file():
-            out.append(Comparison(ImageResult(stem, None, False, f"no baseline {expected}"), {}))
+            result = Comparison(ImageResult(stem, None, False, f"no baseline {expected}"), {})
+            out.append(result)
+            reviews.append(FigureReview(stem, "", f"{spec} now", None, files["png"], None, False,
+                                        result.image.message, data_files=data, compare_keys=False))
             continue
         shutil.copyfile(expected, results / f"{stem}.baseline.png")
         same = {fmt: stored.get(stem, {}).get(fmt) == sha256(data) for fmt, data in files.items()}
-        out.append(Comparison(rms_difference(expected, actual, tolerance, results / f"{stem}.difference.png"), same))
+        difference = results / f"{stem}.difference.png"
+        result = Comparison(rms_difference(expected, actual, tolerance, difference), same)
+        out.append(result)
+        reviews.append(FigureReview(stem, f"baseline {expected}", f"{spec} rendered now", expected.read_bytes(),
+                                    files["png"], difference.read_bytes() if difference.is_file() else None,
+                                    result.passed, result.image.message + "; identical bytes: " + _bytes_note(same),
+                                    data_files=data, compare_keys=False))
     lines = [f"{c.image.name}: {'unchanged' if c.passed else 'CHANGED'} ({c.image.message}); identical bytes: "
-             + ", ".join(f"{fmt} {'yes' if ok else 'no'}" for fmt, ok in c.identical_bytes.items()) for c in out]
+             + _bytes_note(c.identical_bytes) for c in out]
     (results / "summary.txt").write_text("\n".join(lines) + "\n")
+    changed = sum(not c.passed for c in out)
+    page = review_page("figspec compare", f"{len(out)} figures against the baselines in {folder} (tolerance RMS "
+                       f"{tolerance:g} on 0-255): {changed} changed, {len(out) - changed} unchanged", reviews)
+    write_all({results / PAGE: page.encode("utf-8")})
     return out
+
+
+PAGE = "review.html"
+
+
+def _bytes_note(same: dict[str, bool]) -> str:
+    return ", ".join(f"{fmt} {'yes' if ok else 'no'}" for fmt, ok in same.items()) or "-"
+
+
+def _data_files(resolved) -> list[str]:
+    """The data files a resolved spec read, as paths relative to the working folder where possible."""
+    from figspec.output.provenance import shown_path
+
+    return [shown_path(Path(path).resolve()) for role, path in input_paths(resolved.spec, resolved.style_sources)
+            if role.startswith("data:")]
 
 
 def _spec_at_revision(spec: Path, revision: str) -> str:
@@ -95,32 +127,50 @@ def _spec_at_revision(spec: Path, revision: str) -> str:
 
 def diff(new: Path, old: Path | None, revision: str | None, outdir: Path) -> list[str]:
     """Render two versions of a spec (``old`` file, or ``new`` at git ``revision``) and write
-    ``old.png``, ``new.png``, ``side_by_side.png``, ``difference.png`` and ``summary.txt`` to
-    ``outdir/<stem>_diff/``. Returns the summary lines. With a revision, the spec comes from
-    git and the data files from the working tree."""
+    ``old.png``, ``new.png``, ``side_by_side.png``, ``difference.png``, ``summary.txt`` and
+    ``review.html`` to ``outdir/<stem>_diff/``. Returns the summary lines.
+
+    The old version is read as if it stood where ``new`` stands: its data files and style are
+    found relative to the spec under review (an old copy kept elsewhere, or a git revision of
+    the file, reads the working tree's data). The summary names the data files each side read."""
     new = Path(new)
     if old is not None:
-        old_text = Path(old).read_text()
-        old_files, old_tables = pipeline.render_in_memory(pipeline.check(old))
+        old_text, told = Path(old).read_text(encoding="utf-8"), f"{old}"
     else:
-        old_text = _spec_at_revision(new, revision)
-        hidden = new.parent / f".{output_stem(new)}.at-{revision.replace('/', '_')}.toml"  # beside it: same relative paths
-        hidden.write_text(old_text)
-        try:
-            old_files, old_tables = pipeline.render_in_memory(pipeline.check(hidden))
-        finally:
-            hidden.unlink(missing_ok=True)
-    new_files, new_tables = pipeline.render_in_memory(pipeline.check(new))
+        old_text, told = _spec_at_revision(new, revision), f"{new} at {revision}"
+    tag = "old" if old is not None else f"at-{revision.replace('/', '_')}"
+    hidden = new.parent / f".{output_stem(new)}.{tag}.toml"     # beside the new one: the same relative paths
+    hidden.write_text(old_text, encoding="utf-8")
+    try:
+        old_resolved = pipeline.check(hidden)
+        old_files, old_tables = pipeline.render_in_memory(old_resolved)
+        old_data = _data_files(old_resolved)
+    except UserError as err:        # name the old version, not the hidden copy beside the new one
+        raise type(err)([replace(p, file=f"{told} (old version)") for p in err.problems]) from None
+    finally:
+        hidden.unlink(missing_ok=True)
+    new_resolved = pipeline.check(new)
+    new_files, new_tables = pipeline.render_in_memory(new_resolved)
+    new_data = _data_files(new_resolved)
     folder = Path(outdir) / f"{output_stem(new)}_diff"
-    pair, difference = side_by_side(old_files["png"], new_files["png"])
+    pair, difference = side_by_side(old_files["png"], new_files["png"], f"old: {told}", f"new: {new}")
     write_all({folder / "old.png": old_files["png"], folder / "new.png": new_files["png"],
                folder / "side_by_side.png": pair, folder / "difference.png": difference})
     image = rms_difference(folder / "old.png", folder / "new.png", 0.0)
-    against = f"{old}" if old is not None else f"{new} at {revision} (data from the working tree)"
-    lines = [f"comparing {new} with {against}", "spec:"]
-    lines += ["  " + line for line in key_changes(tomli.loads(old_text), tomli.loads(new.read_text()))] or ["  no change"]
+    keys = key_changes(tomli.loads(old_text), tomli.loads(new.read_text(encoding="utf-8")))
+    tables = table_diffs(old_tables.for_export(), new_tables.for_export())
+    lines = [f"comparing {new} with {told}", "spec:"]
+    lines += ["  " + line for line in keys] or ["  no change"]
     lines += ["source data:"]
-    lines += ["  " + line for line in table_changes(old_tables.for_export(), new_tables.for_export())] or ["  no change"]
-    lines += [f"image: {'identical' if image.passed else image.message}"]
-    write_all({folder / "summary.txt": ("\n".join(lines) + "\n").encode()})
+    lines += ["  " + line for d in tables for line in d.lines()] or ["  no change"]
+    lines += ["data files: " + (", ".join(new_data) if old_data == new_data else
+                                f"old {', '.join(old_data)}; new {', '.join(new_data)}")]
+    verdict = "identical images" if image.passed else f"the images differ ({image.message})"
+    lines += [f"image: {verdict}"]
+    review = FigureReview(output_stem(new), told, str(new), old_files["png"], new_files["png"],
+                          None if image.passed else difference, image.passed, verdict, keys, tables,
+                          new_data if old_data == new_data else [f"old: {p}" for p in old_data] +
+                          [f"new: {p}" for p in new_data])
+    page = review_page(f"figspec diff: {new}", f"{new} compared with {told}", [review])
+    write_all({folder / "summary.txt": ("\n".join(lines) + "\n").encode(), folder / PAGE: page.encode("utf-8")})
     return lines
