@@ -92,6 +92,11 @@ def _parser() -> argparse.ArgumentParser:
                      "the spike table has level and trial columns)")
     dra.add_argument("-o", "--output", metavar="SPEC", required=True, help="the spec file to write")
     dra.add_argument("--force", action="store_true", help="overwrite SPEC if it exists")
+    wat = sub.add_parser("watch", formatter_class=_Help, epilog='examples:\n  figspec watch specs/fig2.toml\n  figspec watch specs/fig2.toml --format png,pdf --style projected', help="render a spec again on every save of it, its data or its style; the index page reloads itself (needs figspec[preview])")
+    wat.add_argument("spec", metavar="SPEC")
+    wat.add_argument("-o", "--outdir", default="figure_preview", help="output folder (open its index.html)")
+    wat.add_argument("--format", dest="formats", metavar="LIST", default="png", help="comma-separated formats")
+    wat.add_argument("--style", metavar="NAME", help="render in this style instead of the spec's own")
     dif = sub.add_parser("diff", formatter_class=_Help, epilog='examples:\n  figspec diff specs/fig2.toml --rev main\n  figspec diff specs/fig2.toml --old old/fig2.toml', help="show what changed between two versions of a spec")
     dif.add_argument("spec", metavar="SPEC", help="the new version")
     which = dif.add_mutually_exclusive_group(required=True)
@@ -119,6 +124,8 @@ def run(argv: Sequence[str] | None = None) -> int:
         return _render(args)
     if args.command == "draft":
         return _draft(args)
+    if args.command == "watch":
+        return _watch(args)
     if args.command == "schema":
         from figspec.spec.schema import schema_text
 
@@ -233,6 +240,33 @@ def _draft(args: argparse.Namespace) -> int:
             print(problem.format(), file=sys.stderr)
         return EXIT_USER
     print(f"{target} checks; draw it with: figspec render {target}")
+    return EXIT_OK
+
+
+def _watch(args: argparse.Namespace) -> int:
+    """``watch``: render, then render again on every save until Ctrl-C."""
+    from figspec.build import BuildOptions
+    from figspec.optional import require
+    from figspec.preview import Preview
+
+    try:
+        require("watchfiles", "figspec watch")
+        spec = _spec_files([args.spec])
+        if len(spec) != 1:
+            raise UserError(Problem("figspec watch takes one spec file", file=args.spec))
+        options = BuildOptions(args.outdir, tuple(_formats(args.formats)), args.style, None, False, True)
+    except UserError as err:
+        for problem in err.problems:
+            print(problem.format(), file=sys.stderr)
+        return EXIT_USER
+    preview = Preview(spec[0], options, lambda line: print(line, flush=True))
+    preview.render()
+    print(f"open {(Path(args.outdir) / 'index.html').resolve().as_uri()} ; watching "
+          f"{len(preview.files)} files (Ctrl-C stops)", flush=True)
+    try:
+        preview.watch()
+    except KeyboardInterrupt:
+        pass
     return EXIT_OK
 
 

@@ -12,6 +12,7 @@ EXTRAS: dict[str, str] = {   # importable module -> the extra of pyproject.toml 
     "pyarrow.parquet": "parquet",
     "pynwb": "nwb",
     "distributed": "cluster",
+    "watchfiles": "preview",
 }
 
 

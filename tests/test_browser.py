@@ -125,3 +125,15 @@ def test_the_index_page_of_a_render(tmp_path, cli):
     found = probe(page, tmp_path)
     assert found == {"images": 2, "decoded": 2, "problems": []}
     assert _ink_rows(screenshot(page, "index.png", tmp_path)) > 600
+
+
+def test_the_live_preview_page_polls_without_errors(tmp_path):
+    pytest.importorskip("watchfiles")
+    from figspec.build import BuildOptions
+    from figspec.preview import Preview
+
+    spec = copy_project(tmp_path) / "level_grid.toml"
+    out = tmp_path / "preview"
+    Preview(spec, BuildOptions(str(out), ("png",), None, None, False, True), lambda line: None).render()
+    found = probe(out / "index.html", tmp_path)          # ten seconds of virtual time: ten polls of preview.js
+    assert found == {"images": 1, "decoded": 1, "problems": []}

@@ -1,5 +1,5 @@
 """The package keeps its one-way flow, spec -> data -> compute -> draw -> output -> registry ->
-steps -> pipeline -> review/draft/testing -> build -> cluster -> cli, with no cycle, and each layer uses only the
+steps -> pipeline -> review/draft/testing -> build -> preview -> cluster -> cli, with no cycle, and each layer uses only the
 third-party libraries it is meant to."""
 
 import ast
@@ -11,7 +11,7 @@ import figspec
 PACKAGE = Path(figspec.__file__).parent
 # every module of the package belongs to one layer: a folder, or a top-level module
 LAYERS = ["base", "spec", "data", "compute", "draw", "output", "registry", "steps", "pipeline", "notebook", "review",
-          "draft", "testing", "build", "cluster", "demo", "cli"]
+          "draft", "testing", "build", "preview", "cluster", "demo", "cli"]
 BASE = {"figspec", "figspec.errors", "figspec.optional", "figspec.__init__"}   # importable from every layer
 THIRD_PARTY = {  # what each layer may import besides the standard library and earlier layers
     "spec": {"pydantic", "tomli"},
