@@ -76,11 +76,6 @@ def _relative(path: Path, folder: Path) -> str:
     return Path(os.path.relpath(Path(path).resolve(), folder.resolve())).as_posix()
 
 
-def _source_name(path: Path) -> str:
-    name = re.sub(r"[^A-Za-z0-9_]+", "_", Path(path).stem).strip("_").lower()
-    return name if name and name[0].isalpha() else f"recording_{name}" if name else "recording"
-
-
 def draft_text(s: Survey, spec_path: Path) -> str:
     """The spec text for a survey, with paths relative to where the spec will be written."""
     folder = Path(spec_path).resolve().parent
@@ -117,7 +112,7 @@ def draft_text(s: Survey, spec_path: Path) -> str:
 
 
 def _source_lines(s: Survey, folder: Path) -> list[str]:
-    name = _source_name(s.spikes.path)
+    name = "recording"
     lines = [f"[sources.{name}]"]
     if s.spikes.format == "nwb":
         lines += [_line("format", "nwb"), _line("file", _relative(s.spikes.path, folder))]

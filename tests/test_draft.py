@@ -30,8 +30,8 @@ def test_two_demo_csv_files_give_a_spec_that_renders(tmp_path, cli):
     assert "unit.toml checks" in ran.stdout
     text = (tmp_path / "unit.toml").read_text()
     spec = tomli.loads(text)
-    assert spec["sources"]["spikes"]["clock"] == "session"
-    assert spec["sources"]["spikes"]["time_unit"] == "s"
+    assert spec["sources"]["recording"]["clock"] == "session"
+    assert spec["sources"]["recording"]["time_unit"] == "s"
     assert [p["kind"] for p in spec["panels"]] == ["raster", "psth", "level_response", "latency"]
     assert all("# guess:" in line or line.split("=")[0].strip() in ("spikes", "trials")
                for line in _guessed_lines(text)), _guessed_lines(text)
@@ -84,3 +84,27 @@ def test_draft_does_not_overwrite_and_names_unreadable_data(tmp_path, cli):
     ran = cli("draft", "s.csv", "-o", "y.toml", cwd=tmp_path)
     assert ran.returncode == 2 and "s.csv" in ran.stderr and "Traceback" not in ran.stderr
     assert not (tmp_path / "y.toml").exists()
+
+
+def test_the_readme_walkthrough_shows_what_draft_writes(tmp_path, cli):
+    """The README's example lines are the draft's own lines for the demo files in data/, and the
+    one edit it describes gives a figure."""
+    from helpers import ROOT
+
+    readme = (ROOT / "README.md").read_text()
+    section = readme[readme.index("## From your own data to a figure"):readme.index("## A minimal spec")]
+    shown = section[section.index("```toml") + 7:].split("```")[0].strip().splitlines()
+    (tmp_path / "data").mkdir()
+    for name in ("spikes.csv", "trials.csv"):
+        shutil.copy(SPECS / "data" / name, tmp_path / "data" / name)
+    ran = cli("draft", "data/spikes.csv", "data/trials.csv", "-o", "unit.toml", cwd=tmp_path)
+    assert ran.returncode == 0
+    for line in ran.stdout.splitlines():
+        assert line in section, line
+    written = (tmp_path / "unit.toml").read_text().splitlines()
+    assert [line for line in shown if line and line not in written] == []
+    spec = tmp_path / "unit.toml"
+    spec.write_text(spec.read_text().replace('unit = "dB"  ', 'unit = "dB SPL"', 1))
+    assert tomli.loads(spec.read_text())["levels"]["unit"] == "dB SPL"
+    rendered = cli("render", "unit.toml", "-o", "out", "--format", "png", cwd=tmp_path)
+    assert rendered.returncode == 0, rendered.stderr
