@@ -11,7 +11,10 @@ recording is written as a lab's other layouts and formats would hold it: ``sorte
 (a spike sorter's output: unit and session time, no trial column), ``level_spikes.csv`` and
 ``level_trials.csv`` (trial numbers restarting within each level, times in ms from each trial's
 start), ``spikes.parquet``/``trials.parquet`` and ``session.nwb``; ``day2_*.csv`` is a second
-session of the same model from the next seed (for pooling sessions).
+session of the same model from the next seed (for pooling sessions). ``pressure_trials.csv`` is
+the trial table with the level as sound pressure in mPa, as a rig's calibration might give it
+(20 µPa x 10^(dB/20), to two significant digits), where the lowest level is played as silence (0 mPa), for a log level axis
+with a level of 0.
 
 Model: 270 trials (9 levels from 0 to 80 dB SPL, 30 each) in a shuffled order, one every
 600 ms (``start_s`` to ``stop_s``), each with a 50-ms noise burst about 200 ms after the start. Each unit fires as an inhomogeneous Poisson process
@@ -121,6 +124,16 @@ def write_nwb(path: Path, spikes: pd.DataFrame, trials: pd.DataFrame) -> None:
         io.write(nwb)
 
 
+def pressure_trials(trials: pd.DataFrame) -> pd.DataFrame:
+    """The trial table with ``level_mpa`` (sound pressure, mPa; 0 for the silent lowest level)
+    in place of ``level_db``."""
+    pressure = np.where(trials["level_db"] == trials["level_db"].min(), 0.0,
+                        [float(f"{p:.2g}") for p in 0.02 * 10.0 ** (trials["level_db"].to_numpy() / 20.0)])
+    out = trials.drop(columns="level_db")
+    out.insert(1, "level_mpa", pressure)
+    return out
+
+
 def write_all(folder: Path, seed: int = SEED) -> dict[str, int]:
     """Write every demo file into ``folder``: the CSV recording, its Parquet copy, the spike
     sorter's session-clock table without trial column, the per-level trial numbering and the
@@ -129,6 +142,7 @@ def write_all(folder: Path, seed: int = SEED) -> dict[str, int]:
     folder.mkdir(parents=True, exist_ok=True)
     csv = {"spikes.csv": spikes, "trials.csv": trials, "sorted_spikes.csv": spikes[["unit", "time_s"]]}
     csv["level_spikes.csv"], csv["level_trials.csv"] = restarting_trials(spikes, trials)
+    csv["pressure_trials.csv"] = pressure_trials(trials)
     for name, frame in csv.items():
         frame.to_csv(folder / name, index=False, lineterminator="\n")
     day2_spikes, day2_trials = generate(seed + 1)          # a second invented session, other units' draws

@@ -156,7 +156,7 @@ def test_dotted_spec_names_keep_their_whole_name(tmp_path, cli):
     ran = cli("render", *specs, "-o", tmp_path / "out", "--format", "png", "--jobs", "1")
     assert ran.returncode == 0, ran.stderr
     assert sorted(p.name for p in (tmp_path / "out").iterdir()) == ["fig2.v1.png", "fig2.v1_data", "fig2.v2.png",
-                                                                     "fig2.v2_data"]
+                                                                     "fig2.v2_data", "index.html"]
 
 
 def test_a_bad_profile_or_style_option_is_blamed_on_the_option(cli):

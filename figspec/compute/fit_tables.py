@@ -128,6 +128,18 @@ def fit_unit(model: str, data: UnitPoints, scale: str, confidence: float, resamp
                      bounds), refits
 
 
+def curve_grid(levels: np.ndarray, axis: str) -> np.ndarray:
+    """Levels to draw a fitted curve at: evenly spaced on the axis it is drawn on (log-spaced
+    on a log axis, so the curve is smooth there too; with a level of 0, a linear stretch from 0
+    to the smallest positive level, as the axis draws that stretch)."""
+    lo, hi = float(np.min(levels)), float(np.max(levels))
+    if axis != "log" or hi <= 0:
+        return np.linspace(lo, hi, CURVE_POINTS)
+    smallest = float(np.min(levels[levels > 0]))
+    logged = np.geomspace(smallest, hi, CURVE_POINTS)
+    return np.concatenate([np.linspace(lo, smallest, 20, endpoint=False), logged]) if lo < smallest else logged
+
+
 def fit_tables(by_unit: dict[str, UnitPoints], y: str, model: str, levels: LevelSpec, panel,
                value_unit: str, weighting: str) -> tuple[pd.DataFrame, list[list]]:
     """(curve table: unit, level, ``y``, status; parameter rows as ``PARAM_COLUMNS``)."""
@@ -148,7 +160,7 @@ def fit_tables(by_unit: dict[str, UnitPoints], y: str, model: str, levels: Level
         if model == "naka_rushton" and result.drawn:
             params += _derived_rows(unit, result, refits, scale, levels.unit, panel.confidence)
         if result.drawn:
-            grid = np.linspace(data.levels.min(), data.levels.max(), CURVE_POINTS)
+            grid = curve_grid(data.levels, getattr(panel, "level_axis", "linear"))
             f = MODELS[model](grid, scale)[0]
             curves.append(pd.DataFrame({"unit": unit, "level": grid, y: f(grid, *result.estimate),
                                         "status": result.status}))

@@ -81,9 +81,9 @@ def compose(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> "Figu
                                                  or (p.stimulus["start_max_ms"] > p.stimulus["start_ms"]).any())
                      for p in plans)
         shaded = [sub for sub in fig.subfigs if any(a.get_gid() == "stimulus" for ax in sub.axes for a in ax.patches)]
-        # under the one panel that shows the stimulus, else under the whole figure
+        # under the one panel that shows the stimulus, else under the union of those that do
         stimulus_key(shaded[0] if len(shaded) == 1 else fig, appearance, spec.stimulus.label, spec.levels.label,
-                     ranges)
+                     ranges, shaded if len(shaded) > 1 else None)
     typeset_math(fig, math_pieces(spec))
     return fig
 

@@ -108,9 +108,11 @@ def mark_stimulus(ax: "Axes", window: pd.Series, colour: str, alpha: float, styl
     return artists
 
 
-def stimulus_key(fig, appearance: dict[float, tuple], label: str, level_text, ranges: bool) -> None:
+def stimulus_key(fig, appearance: dict[float, tuple], label: str, level_text, ranges: bool,
+                 under: list | None = None) -> None:
     """A small key under ``fig`` (the figure, or the one panel's subfigure that shows the
-    stimulus): the stimulus at the lowest, a middle and the highest level."""
+    stimulus): the stimulus at the lowest, a middle and the highest level. With ``under`` (the
+    subfigures of several shaded panels), the figure's key is centred under their union."""
     from matplotlib.patches import Patch
 
     levels = sorted(appearance)
@@ -119,5 +121,22 @@ def stimulus_key(fig, appearance: dict[float, tuple], label: str, level_text, ra
     handles = [Patch(facecolor=appearance[lv][0], alpha=appearance[lv][1], linewidth=0) for lv in shown]
     labels = [level_text(lv) for lv in shown]
     title = label + (" (fainter: range of onsets or offsets across trials)" if ranges else "")
-    fig.legend(handles, labels, loc="outside lower center", ncols=len(shown), title=title,
-               title_fontsize=None, handlelength=1.5, columnspacing=1.2, alignment="center")
+    key = fig.legend(handles, labels, loc="outside lower center", ncols=len(shown), title=title,
+                     title_fontsize=None, handlelength=1.5, columnspacing=1.2, alignment="center")
+    if under:
+        centre_under(key, fig, under)
+
+
+def centre_under(key, fig, subfigures: list) -> None:
+    """Centre a figure key horizontally under the union of ``subfigures``, as they are laid out
+    when the figure is drawn. The key keeps no anchor of its own (``_bbox_to_anchor`` stays
+    None), so constrained layout still makes room for it below the panels; only the box it is
+    placed in (``get_bbox_to_anchor``, read at draw time) becomes the union's span."""
+    from matplotlib.transforms import Bbox
+
+    def span() -> Bbox:
+        left = min(sub.bbox.x0 for sub in subfigures)
+        right = max(sub.bbox.x1 for sub in subfigures)
+        return Bbox([[left, fig.bbox.y0], [right, fig.bbox.y1]])
+
+    key.get_bbox_to_anchor = span

@@ -246,7 +246,7 @@ def write_index(folder: Path, title: str | None = None, live: bool = False,
     import os
 
     folder = Path(folder)
-    text = index_page(title or f"Figures in {folder.name}", index_entries(folder, problems), live)
+    text = index_page(title or "Figures", index_entries(folder, problems), live)
     target = folder / "index.html"
     temporary = folder / f".index.html.{os.getpid()}.tmp"
     temporary.write_text(text, encoding="utf-8")

@@ -7,7 +7,7 @@ from figspec.demo import generate, write_all
 from helpers import SPECS
 
 CSV_FILES = ["spikes.csv", "trials.csv", "sorted_spikes.csv", "level_spikes.csv", "level_trials.csv",
-             "day2_spikes.csv", "day2_trials.csv"]
+             "day2_spikes.csv", "day2_trials.csv", "pressure_trials.csv"]
 
 
 @pytest.fixture(scope="module")

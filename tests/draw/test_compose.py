@@ -182,3 +182,25 @@ def test_scale_bar_rows_keep_a_baseline_and_hold_no_invisible_text(composite):
         [baseline] = [line for line in ax.get_lines() if line.get_gid() == "baseline"]
         assert list(baseline.get_ydata()) == [0.0, 0.0]
         assert not any(t.get_visible() and t.get_text() for t in ax.get_xticklabels())
+
+
+def test_the_stimulus_key_sits_under_the_shaded_panels_only(tmp_path):
+    """Two shaded panels (raster, rate) beside a level_response panel: the key is centred under
+    the two, not under the figure, and below every panel."""
+    text = demo_text("level_grid").replace('journal = "nature"', "") + """
+[[panels]]
+name = "response"
+kind = "level_response"
+unit = "u1"
+response_ms = [0, 60]
+baseline_ms = [-50, 0]
+"""
+    fig, _ = render(write_spec(tmp_path, text))
+    renderer = fig.canvas.get_renderer()
+    shaded = [sub for sub in fig.subfigs if sub.get_gid() in ("spikes", "rate")]
+    other = next(sub for sub in fig.subfigs if sub.get_gid() == "response")
+    left, right = min(s.bbox.x0 for s in shaded), max(s.bbox.x1 for s in shaded)
+    key = fig.legends[0].get_window_extent(renderer)
+    assert (key.x0 + key.x1) / 2 == pytest.approx((left + right) / 2, abs=2)
+    assert key.x1 < other.bbox.x0                                  # not under the unshaded panel
+    assert key.y1 <= min(s.bbox.y0 for s in shaded) + 1            # below the panels
