@@ -98,7 +98,8 @@ def test_the_exit_status_is_the_worst_and_every_line_names_its_spec(tmp_path, cl
     assert f"{bad}:" in ran.stderr and "bin_ms" in ran.stderr
     table = ran.stdout.splitlines()
     assert any(line.startswith(str(bad)) and " failed " in line for line in table)
-    assert table[-1].startswith("1 rendered, 0 skipped, 1 failed")
+    assert table[-2].startswith("1 rendered, 0 skipped, 1 failed")
+    assert table[-1].startswith("index of every figure in ")
     assert worst([0, 2, 1]) == 1 and worst([0, 2]) == 2 and worst([0, 0]) == 0
 
 

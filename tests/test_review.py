@@ -41,7 +41,8 @@ def two_renders(tmp_path_factory, demo_render):
 
 def test_two_processes_write_identical_bytes(two_renders):
     a, b = two_renders
-    files = sorted(p.relative_to(b) for p in b.rglob("*") if p.is_file())
+    # every spec's own outputs; index.html lists a folder's figures, and the two folders hold different sets
+    files = sorted(p.relative_to(b) for p in b.rglob("*") if p.is_file() and p.name != "index.html")
     assert {p.suffix for p in files} >= {".svg", ".pdf", ".png", ".csv", ".json", ".md"}
     assert len([f for f in files if f.suffix == ".png"]) == 2
     assert [f for f in files if sha(a / f) != sha(b / f)] == []
@@ -151,9 +152,12 @@ def test_diff_against_a_git_revision_reports_the_key_change(tmp_path):
     result = figspec("diff", spec, "--rev", "HEAD", "-o", tmp_path / "d")
     assert result.returncode == 0, result.stderr
     assert "changed panels[1].bin_ms: 10 -> 8" in result.stdout
-    assert "table rate: 40 -> 50 rows" in result.stdout           # 2 levels x 20 bins -> 2 x 25
+    assert "table rate: 50 rows added (of 50)" in result.stdout    # 2 levels x 20 bins -> 2 x 25: no bin
+    assert "table rate: 40 rows removed (of 40)" in result.stdout  # has both its edges in both versions
+    assert "data files: " in result.stdout and "spikes.csv" in result.stdout
     folder = tmp_path / "d" / "fig_diff"
-    assert {"old.png", "new.png", "side_by_side.png", "difference.png", "summary.txt"} <= {p.name for p in folder.iterdir()}
+    assert {"old.png", "new.png", "side_by_side.png", "difference.png", "summary.txt", "review.html"} <= \
+        {p.name for p in folder.iterdir()}
     assert not list(specs.glob(".*.toml"))                        # the revision's copy was removed
 
 
@@ -166,13 +170,14 @@ def test_compare_clears_its_own_files_of_earlier_runs(tmp_path):
         (results / stale).write_bytes(b"from an earlier run")
     (results / "notes.txt").write_text("the user's own file")
     assert figspec("compare", spec, "--dir", tmp_path / "base", "-o", results).returncode == 0
-    assert sorted(p.name for p in results.iterdir()) == ["fig.baseline.png", "fig.new.png", "notes.txt", "summary.txt"]
+    assert sorted(p.name for p in results.iterdir()) == ["fig.baseline.png", "fig.new.png", "notes.txt", "review.html",
+                                                         "summary.txt"]
 
 
 def test_every_command_shows_examples_and_defaults(capsys):
     from figspec.cli import run
 
-    for command in ("render", "check", "snapshot", "compare", "diff", "schema"):
+    for command in ("render", "check", "snapshot", "compare", "diff", "schema", "draft", "watch"):
         with pytest.raises(SystemExit):
             run([command, "--help"])
         text = capsys.readouterr().out

@@ -305,6 +305,12 @@ def _trial_key(out: Survey) -> None:
 
 def _level_unit(out: Survey, column: str) -> None:
     suffix = _split_name(column)[1]
+    base = _split_name(column)[0]
+    if base in ("attenuation", "atten"):
+        out.level_unit = Guess(LEVEL_SUFFIXES.get(suffix or "", "dB"), f"the level column {column!r} is an attenuation",
+                               "an attenuation is higher for quieter sounds: convert it to the level presented "
+                               "(e.g. dB SPL), or rows and fits will run the wrong way")
+        return
     if suffix in LEVEL_SUFFIXES:
         unit = LEVEL_SUFFIXES[suffix]
         question = "dB SPL, dB attenuation, or another reference?" if unit == "dB" else None
@@ -322,13 +328,16 @@ def _column(out: Survey, role: str) -> np.ndarray | None:
 
 
 def _typical_trial(out: Survey) -> tuple[float | None, str]:
-    """The median length of a trial in file units, and what it was measured from."""
+    """The median length of a trial in file units, and what it was measured from: start to
+    stop where both are given, else the stimulus (onset to offset), else the stop on a clock
+    that starts each trial at 0."""
     start, stop, onset, offset = (_column(out, r) for r in ("start", "stop", "onset", "offset"))
-    if stop is not None:
-        first = start if start is not None else np.zeros_like(stop)
-        return float(np.nanmedian(stop - first)), "the median trial (start to stop)"
+    if start is not None and stop is not None:
+        return float(np.nanmedian(stop - start)), "the median trial (start to stop)"
     if onset is not None and offset is not None:
         return float(np.nanmedian(offset - onset)), "the median stimulus (onset to offset)"
+    if stop is not None and onset is not None and np.nanmax(onset) < np.nanmedian(stop):
+        return float(np.nanmedian(stop)), "the median trial (0 to stop)"
     return None, ""
 
 
@@ -350,8 +359,10 @@ def _guess_time_unit(out: Survey) -> None:
     if length is None:     # no trial times: look at the spread of the spike times
         times = out.spikes.frame[out.spike_columns["time"].value].to_numpy(dtype=float)
         length, what = float(np.nanpercentile(times, 99) - np.nanpercentile(times, 1)), "the spike times' range"
-    if length > 20:
-        out.time_unit = Guess("ms", f"{what} is {length:.3g} long: {length:.3g} s would be long for a trial, "
+    # a trial (or the spikes' spread) of over 20 units is taken as ms; a stimulus of over 10
+    # (a 10-s burst is rare, a 10-ms one common); under 1 as s either way; between: a question
+    if length > (10 if "stimulus" in what else 20):
+        out.time_unit = Guess("ms", f"{what} is {length:.3g} long: {length:.3g} s would be long, "
                                     f"{length:.3g} ms is usual")
     elif length < 1:
         out.time_unit = Guess("s", f"{what} is {length:.3g} long: {length:.3g} ms would be short, {length:.3g} s is usual")

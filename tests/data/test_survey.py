@@ -90,3 +90,16 @@ def test_delimiters_and_parquet_are_read_by_content(tmp_path, rng):
     pytest.importorskip("pyarrow")
     spikes.to_parquet(tmp_path / "a.bin", index=False)     # by content, not by its name
     assert read_any(tmp_path / "a.bin").format == "parquet"
+
+
+def test_an_attenuation_column_is_questioned(rng):
+    spikes, trials = _recording(rng, names={"level": "atten_db"})
+    s = survey(_table(spikes), _table(trials))
+    assert s.trial_columns["level"].value == "atten_db"
+    assert "wrong way" in s.level_unit.question and s.level_unit.question in s.questions
+
+
+def test_a_trial_clock_without_start_uses_the_stimulus_length(rng):
+    spikes, trials = _recording(rng, "ms", "trial")
+    s = survey(_table(spikes), _table(trials.drop(columns="start")))
+    assert s.time_unit.value == "ms" and s.clock.value == "trial"
