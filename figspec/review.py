@@ -156,7 +156,7 @@ def diff(new: Path, old: Path | None, revision: str | None, outdir: Path) -> lis
     pair, difference = side_by_side(old_files["png"], new_files["png"], f"old: {told}", f"new: {new}")
     write_all({folder / "old.png": old_files["png"], folder / "new.png": new_files["png"],
                folder / "side_by_side.png": pair, folder / "difference.png": difference})
-    image = rms_difference(folder / "old.png", folder / "new.png", 0.0)
+    image = rms_difference(folder / "old.png", folder / "new.png", 0.0, names=("old", "new"))
     keys = key_changes(tomli.loads(old_text), tomli.loads(new.read_text(encoding="utf-8")))
     tables = table_diffs(old_tables.for_export(), new_tables.for_export())
     lines = [f"comparing {new} with {told}", "spec:"]

@@ -137,3 +137,17 @@ def test_the_live_preview_page_polls_without_errors(tmp_path):
     Preview(spec, BuildOptions(str(out), ("png",), None, None, False, True), lambda line: None).render()
     found = probe(out / "index.html", tmp_path)          # ten seconds of virtual time: ten polls of preview.js
     assert found == {"images": 1, "decoded": 1, "problems": []}
+
+
+def test_the_compare_review_page(tmp_path, cli):
+    from helpers import SMALL_SPEC, write_spec
+
+    spec = write_spec(tmp_path, SMALL_SPEC, "fig.toml")
+    assert cli("snapshot", spec, "--dir", tmp_path / "base").returncode == 0
+    spec.write_text(spec.read_text().replace("bin_ms = 10", "bin_ms = 8"))
+    ran = cli("compare", spec, "--dir", tmp_path / "base", "-o", tmp_path / "cmp")
+    assert ran.returncode == 3
+    page = tmp_path / "cmp" / "review.html"
+    text = page.read_text()
+    assert "1 changed, 0 unchanged" in text and "Old: baseline" in text and "tolerance RMS 1" in text
+    assert probe(page, tmp_path) == {"images": 3, "decoded": 3, "problems": []}

@@ -185,3 +185,25 @@ def test_every_command_shows_examples_and_defaults(capsys):
     with pytest.raises(SystemExit):
         run(["compare", "--help"])
     assert "(default: 1.0)" in " ".join(capsys.readouterr().out.split())      # wrapped at any width
+
+
+def test_diff_blames_a_broken_old_version_on_the_old_file(tmp_path):
+    spec = write_spec(tmp_path, SMALL_SPEC, "fig.toml")
+    old = tmp_path / "kept" / "fig.toml"
+    old.parent.mkdir()
+    old.write_text(SMALL_SPEC.replace("bin_ms = 10", "bin_ms = -1"))
+    result = figspec("diff", spec, "--old", old, "-o", tmp_path / "d")
+    assert result.returncode == 2 and "Traceback" not in result.stderr
+    assert result.stderr.startswith(f"{old} (old version):") and "bin_ms" in result.stderr
+    assert not list(tmp_path.glob(".*.toml"))                     # the copy beside the spec was removed
+
+
+def test_diff_of_a_resized_figure_says_which_side_is_which(tmp_path):
+    spec = write_spec(tmp_path, SMALL_SPEC, "fig.toml")
+    (tmp_path / "kept").mkdir()
+    old = write_spec(tmp_path / "kept", SMALL_SPEC, "fig.toml")
+    spec.write_text(spec.read_text().replace("height_mm = 120", "height_mm = 60", 1))
+    result = figspec("diff", spec, "--old", old, "-o", tmp_path / "d")
+    assert result.returncode == 0, result.stderr
+    assert "px (old) and " in result.stdout and "px (new)" in result.stdout
+    assert "changed figure.height_mm: 120 -> 60" in result.stdout

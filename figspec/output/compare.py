@@ -45,14 +45,14 @@ def difference_image(expected: np.ndarray, actual: np.ndarray) -> bytes:
 
 
 def rms_difference(expected: Path, actual: Path, tolerance: float,
-                   difference: Path | None = None) -> ImageResult:
+                   difference: Path | None = None, names: tuple[str, str] = ("baseline", "new")) -> ImageResult:
     """Compare two PNGs by :func:`rms`; when they differ and ``difference`` is given, write the
     difference image there."""
     a, b = _rgb(Path(expected).read_bytes()), _rgb(Path(actual).read_bytes())
     name = Path(actual).name.split(".")[0]
     if a.shape != b.shape:
         return ImageResult(name, None, False, f"image sizes differ: {a.shape[1]}x{a.shape[0]} px "
-                                              f"(baseline) and {b.shape[1]}x{b.shape[0]} px (new)")
+                                              f"({names[0]}) and {b.shape[1]}x{b.shape[0]} px ({names[1]})")
     value = rms(a, b)
     if value <= tolerance:
         return ImageResult(name, value, True, f"RMS {value:.2f} <= tolerance {tolerance:g}")
