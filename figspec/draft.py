@@ -69,7 +69,8 @@ def windows(s: Survey) -> dict[str, tuple[float, float]]:
     before = stim if s.before_ms is None else min(stim, s.before_ms)
     after = 3 * stim if s.after_ms is None else min(3 * stim, s.after_ms)
     before, after = _floor_to(before, step) or min(step, before), _floor_to(after, step) or after
-    return {"window": (-before, after), "response": (0.0, min(stim + step, after)), "baseline": (-before, 0.0)}
+    baseline = (-before + 0.0, 0.0) if before > 0 else (-step, 0.0)    # no time before onset: asked
+    return {"window": (-before + 0.0, after), "response": (0.0, min(stim + step, after)), "baseline": baseline}
 
 
 def _relative(path: Path, folder: Path) -> str:
@@ -107,7 +108,7 @@ def draft_text(s: Survey, spec_path: Path) -> str:
                 _line("stop_ms", stop, note="question: 50 ms is a placeholder: how long was the stimulus?")]
     out += [_line("label", "Stimulus"), ""]
     out += _source_lines(s, folder)
-    out += _panel_lines(unit, units_note, w)
+    out += _panel_lines(unit, units_note, w, no_baseline=w["window"][0] >= 0)
     return "\n".join(out) + "\n"
 
 
@@ -154,7 +155,7 @@ def _source_lines(s: Survey, folder: Path) -> list[str]:
     return lines + [""]
 
 
-def _panel_lines(unit: str, units_note: str, w: dict) -> list[str]:
+def _panel_lines(unit: str, units_note: str, w: dict, no_baseline: bool = False) -> list[str]:
     window, response, baseline = (list(map(float, w[k])) for k in ("window", "response", "baseline"))
     step = _step_for(window[1] - window[0])
     unit_line = _line("unit", unit, note=f"guess: the unit with the most spikes; units: {units_note}")
@@ -168,7 +169,8 @@ def _panel_lines(unit: str, units_note: str, w: dict) -> list[str]:
         "", "[[panels]]", _line("name", "response"), _line("kind", "level_response"), _line("unit", unit),
         _line("cell", [1, 3]),
         _line("response_ms", response, note="guess: the stimulus and one step after it"),
-        _line("baseline_ms", baseline),
+        _line("baseline_ms", baseline, note="question: no trial recorded time before the onset; the tests "
+              "against baseline need a window there" if no_baseline else None),
         "", "[[panels]]", _line("name", "latency"), _line("kind", "latency"), _line("unit", unit),
         _line("cell", [2, 3]), _line("response_ms", response)]
 
@@ -176,6 +178,11 @@ def _panel_lines(unit: str, units_note: str, w: dict) -> list[str]:
 def draft(spikes: Path, trials: Path | None, spec_path: Path) -> tuple[str, Survey]:
     """Survey the files and return the spec text (not yet written) and the survey."""
     if Path(spikes).suffix.lower() == ".nwb":
+        if trials is not None:
+            from figspec.errors import DataError, Problem
+
+            raise DataError(Problem("an NWB file holds its own trials table: leave out the trial table argument",
+                                    file=str(trials)))
         spike_table, trial_table = read_nwb(Path(spikes))
         s = survey(spike_table, trial_table)
         s.trial_columns = {r: g for r, g in s.trial_columns.items() if r in ("level", "onset", "offset")}
