@@ -267,6 +267,10 @@ def _watch(args: argparse.Namespace) -> int:
         preview.watch()
     except KeyboardInterrupt:
         pass
+    except UserError as err:
+        for problem in err.problems:
+            print(problem.format(), file=sys.stderr)
+        return EXIT_USER
     return EXIT_OK
 
 

@@ -66,6 +66,11 @@ class Preview:
         stop = stop or threading.Event()
         while not stop.is_set():
             folders = sorted({str(p.parent) for p in self.files if p.parent.is_dir()})
+            if not folders:
+                from figspec.errors import Problem, UserError
+
+                raise UserError(Problem("the folder of this spec does not exist, so there is nothing to watch",
+                                        file=str(self.spec)))
             wanted = {str(p) for p in self.files}
             changed = False
             for changes in watchfiles.watch(*folders, stop_event=stop, debounce=debounce_ms, rust_timeout=200,

@@ -134,8 +134,15 @@ def diff(new: Path, old: Path | None, revision: str | None, outdir: Path) -> lis
     found relative to the spec under review (an old copy kept elsewhere, or a git revision of
     the file, reads the working tree's data). The summary names the data files each side read."""
     new = Path(new)
+    for path in (new, old):
+        if path is not None and not Path(path).is_file():
+            raise UserError(Problem("spec file not found" if not Path(path).is_dir() else "a folder, not a spec file",
+                                    file=str(path)))
     if old is not None:
-        old_text, told = Path(old).read_text(encoding="utf-8"), f"{old}"
+        try:
+            old_text, told = Path(old).read_text(encoding="utf-8"), f"{old}"
+        except (OSError, UnicodeDecodeError) as err:
+            raise UserError(Problem(f"cannot read it as UTF-8 text ({type(err).__name__})", file=str(old))) from None
     else:
         old_text, told = _spec_at_revision(new, revision), f"{new} at {revision}"
     tag = "old" if old is not None else f"at-{revision.replace('/', '_')}"

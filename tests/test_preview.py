@@ -74,3 +74,8 @@ def test_watch_without_the_extra_names_the_install(monkeypatch, cli, tmp_path):
     monkeypatch.setitem(sys.modules, "watchfiles", None)       # import watchfiles now fails
     ran = cli("watch", copy_project(tmp_path) / "level_grid.toml")
     assert ran.returncode == 2 and "figspec[preview]" in ran.stderr
+
+
+def test_watching_a_spec_in_a_missing_folder_is_refused(tmp_path, cli):
+    ran = cli("watch", tmp_path / "nope" / "fig.toml", "-o", tmp_path / "out")
+    assert ran.returncode == 2 and "nothing to watch" in ran.stderr

@@ -207,3 +207,11 @@ def test_diff_of_a_resized_figure_says_which_side_is_which(tmp_path):
     assert result.returncode == 0, result.stderr
     assert "px (old) and " in result.stdout and "px (new)" in result.stdout
     assert "changed figure.height_mm: 120 -> 60" in result.stdout
+
+
+def test_diff_names_a_missing_spec_without_a_traceback(tmp_path):
+    spec = write_spec(tmp_path, SMALL_SPEC, "fig.toml")
+    for args in ((spec, "--old", tmp_path / "nope.toml"), (tmp_path / "nope.toml", "--old", spec)):
+        result = figspec("diff", *args, "-o", tmp_path / "d")
+        assert result.returncode == 2 and "Traceback" not in result.stderr
+        assert result.stderr.startswith(f"{tmp_path / 'nope.toml'}: spec file not found")
