@@ -82,7 +82,7 @@ def draft_text(s: Survey, spec_path: Path) -> str:
     folder = Path(spec_path).resolve().parent
     from figspec.spec.schema import SHIPPED
 
-    unit, spikes = s.units[0]
+    unit = s.units[0][0]
     units_note = ", ".join(f"{u} ({n:,} spikes)" for u, n in s.units[:8]) + (" ..." if len(s.units) > 8 else "")
     level_values = ", ".join(f"{v:g} ({n})" for v, n in s.levels[:12]) + (" ..." if len(s.levels) > 12 else "")
     w = windows(s)
@@ -103,9 +103,8 @@ def draft_text(s: Survey, spec_path: Path) -> str:
     if s.stimulus_ms is not None:
         out += [_line("per_trial", True, note="guess: the trial table gives each trial's onset and offset")]
     else:
-        stop = s.stimulus_ms or 50
         out += [_line("start_ms", 0, note="question: the stimulus window, ms from the alignment point?"),
-                _line("stop_ms", stop, note="question: 50 ms is a placeholder: how long was the stimulus?")]
+                _line("stop_ms", 50, note="question: 50 ms is a placeholder: how long was the stimulus?")]
     out += [_line("label", "Stimulus"), ""]
     out += _source_lines(s, folder)
     out += _panel_lines(unit, units_note, w, no_baseline=w["window"][0] >= 0)
