@@ -108,3 +108,19 @@ def test_the_readme_walkthrough_shows_what_draft_writes(tmp_path, cli):
     assert tomli.loads(spec.read_text())["levels"]["unit"] == "dB SPL"
     rendered = cli("render", "unit.toml", "-o", "out", "--format", "png", cwd=tmp_path)
     assert rendered.returncode == 0, rendered.stderr
+
+
+@pytest.mark.parametrize("fmt", ["parquet", "nwb"])
+def test_parquet_and_nwb_files_give_specs_that_check(tmp_path, cli, fmt):
+    pytest.importorskip("pyarrow" if fmt == "parquet" else "pynwb")
+    files = ["spikes.parquet", "trials.parquet"] if fmt == "parquet" else ["session.nwb"]
+    for name in files:
+        shutil.copy(SPECS / "data" / name, tmp_path / name)
+    ran = cli("draft", *files, "-o", "unit.toml", cwd=tmp_path)
+    assert ran.returncode == 0, ran.stdout + ran.stderr
+    source = tomli.loads((tmp_path / "unit.toml").read_text())["sources"]["recording"]
+    assert source["format"] == fmt
+    if fmt == "nwb":
+        assert source["unit_names"] == "unit_name" and source["trial_columns"]["onset"] == "onset_s"
+    else:
+        assert source["clock"] == "session" and source["time_unit"] == "s"
