@@ -35,6 +35,7 @@ class SpecResult:
     warnings: list[str] = field(default_factory=list)
     notes: list[str] = field(default_factory=list)
     findings: list[str] = field(default_factory=list)
+    inputs: list[str] = field(default_factory=list)     # files the spec read (when it resolved)
     exit: int = EXIT_OK
 
 
@@ -113,6 +114,9 @@ def render_one(spec: str, options: BuildOptions, reason: str = "") -> SpecResult
         warnings.simplefilter("always", FigspecWarning)
         try:
             resolved = pipeline.check(spec, options.style)
+            from figspec.steps.save import input_paths
+
+            result.inputs = [str(Path(p).resolve()) for _, p in input_paths(resolved.spec, resolved.style_sources)]
             result.notes = [f"note: {n}" for n in pipeline.notes(resolved)]
             rendered = pipeline.render(spec, options.outdir, options.formats, resolved=resolved,
                                        profile=options.profile)

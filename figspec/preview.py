@@ -19,20 +19,6 @@ from figspec.output.names import output_stem
 from figspec.output.review_page import write_index
 
 
-def watched_files(spec: Path, style: str | None) -> set[Path]:
-    """The spec and, when it resolves, every data and style file it reads (absolute paths)."""
-    from figspec import pipeline
-    from figspec.errors import UserError
-    from figspec.steps.save import input_paths
-
-    files = {Path(spec).resolve()}
-    try:
-        resolved = pipeline.check(spec, style)
-    except UserError:
-        return files
-    return files | {Path(p).resolve() for _, p in input_paths(resolved.spec, resolved.style_sources)}
-
-
 class Preview:
     """One spec's live preview: :meth:`render` once, then :meth:`watch` until ``stop`` is set."""
 
@@ -53,7 +39,9 @@ class Preview:
             self.say(f"{self.spec}: rendered in {result.seconds:.1f} s")
         else:
             self.say(f"{self.spec}: not rendered; the last good figure stays on the page")
-        self.files = watched_files(self.spec, self.options.style)
+        # the files the spec read; when it did not resolve, those of the last time it did (a broken
+        # data file must still be watched, so that mending it renders again)
+        self.files = {self.spec.resolve()} | ({Path(p) for p in result.inputs} if result.inputs else self.files)
         self.count += 1
         write_index(self.outdir, f"Live preview of {self.spec.name}", live=True,
                     problems={output_stem(self.spec): problem} if problem else None)

@@ -163,7 +163,7 @@ def match_role(columns: list[str], role: str, taken: set[str]) -> list[str]:
             continue
         base, suffix = _split_name(column)
         for rank, name in enumerate(names):
-            if base == name or (role == "level" and base + "_" + (suffix or "") == name):
+            if base == name:
                 found.append((rank, column))
                 break
             if role == "level" and suffix is None and base in LEVEL_SUFFIXES:

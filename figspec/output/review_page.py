@@ -12,6 +12,8 @@ from __future__ import annotations
 
 import base64
 import html
+import json
+import os
 import re
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -69,10 +71,10 @@ class FigureReview:
     difference_png: bytes | None
     passed: bool
     verdict: str                      # e.g. "RMS 3.10 > tolerance 1"
-    key_changes: list[str] = field(default_factory=list)   # None of these: the spec is not compared
+    key_changes: list[str] = field(default_factory=list)
     tables: list[TableDiff] = field(default_factory=list)
     data_files: list[str] = field(default_factory=list)
-    compare_keys: bool = True
+    compare_keys: bool = True          # False: the page does not compare specs (compare against baselines)
 
 
 def _cell(value: object) -> str:
@@ -218,8 +220,6 @@ def index_page(title: str, entries: list[IndexEntry], live: bool = False) -> str
 def index_entries(folder: Path, problems: dict[str, str] | None = None) -> list[IndexEntry]:
     """An :class:`IndexEntry` for every figure figspec wrote into ``folder`` (found by its
     manifest, ``<stem>_data/manifest.json``), by stem."""
-    import json
-
     folder, problems = Path(folder), problems or {}
     entries = []
     for manifest in sorted(folder.glob("*_data/manifest.json")):
@@ -243,8 +243,6 @@ def write_index(folder: Path, title: str | None = None, live: bool = False,
                 problems: dict[str, str] | None = None) -> Path:
     """Write ``folder/index.html`` (through a temporary file and a rename, so a browser never
     reads half a page)."""
-    import os
-
     folder = Path(folder)
     text = index_page(title or "Figures", index_entries(folder, problems), live)
     target = folder / "index.html"
