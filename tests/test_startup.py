@@ -1,5 +1,8 @@
-"""`figspec check` starts fast: it needs neither matplotlib nor scipy, so it imports neither.
-A fresh process is the only way to see what importing figspec pulls in."""
+"""`figspec check` starts fast: it needs neither matplotlib nor scipy nor pandas (the data layer
+reads and checks data with numpy), so it imports none of them. A fresh process is the only way
+to see what importing figspec pulls in. pandas is deferred (figspec.optional.deferred): a
+placeholder module may stand in sys.modules, so what is checked is that pandas never ran
+(its submodule pandas.core.frame is imported by pandas' own __init__)."""
 
 import subprocess
 import sys
@@ -7,11 +10,20 @@ import sys
 from helpers import DEMO_SPEC, ROOT
 
 
-def test_check_imports_neither_matplotlib_nor_scipy():
+def test_check_imports_neither_matplotlib_nor_scipy_nor_pandas():
     code = ("import sys; from figspec.cli import run; code = run(['check', sys.argv[1]]); "
-            "print(code, 'matplotlib' in sys.modules, 'scipy' in sys.modules)")
+            "print(code, 'matplotlib' in sys.modules, 'scipy' in sys.modules, 'pandas.core.frame' in sys.modules, "
+            "'pyarrow' in sys.modules)")
     out = subprocess.run([sys.executable, "-c", code, str(DEMO_SPEC)], capture_output=True, text=True, cwd=ROOT)
-    assert out.stdout.strip().splitlines()[-1] == "0 False False", out.stderr
+    assert out.stdout.strip().splitlines()[-1] == "0 False False False False", out.stderr
+
+
+def test_a_deferred_pandas_works_once_used():
+    """The placeholder becomes the real pandas on first use (render needs it for its tables)."""
+    code = ("import sys; from figspec.steps.compute import pd; loaded = 'pandas.core.frame' in sys.modules; "
+            "frame = pd.DataFrame({'a': [1]}); print(loaded, 'pandas.core.frame' in sys.modules, len(frame))")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT)
+    assert out.stdout.strip().splitlines()[-1] == "False True 1", out.stderr
 
 
 def test_render_imports_scipy_only_for_a_panel_that_needs_it(tmp_path):

@@ -8,7 +8,10 @@ from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
-import pandas as pd
+
+from figspec.optional import deferred
+
+pd = deferred("pandas")          # imported on first use: checking a spec needs no pandas
 
 STAT_COLUMNS = ["section", "panel", "unit", "level", "quantity", "value", "ci_low", "ci_high", "note"]
 

@@ -14,14 +14,16 @@ from dataclasses import dataclass
 from typing import Callable
 
 import numpy as np
-import pandas as pd
 
 from figspec.compute.batch_fit import refit_all
 from figspec.compute.decibels import to_linear
 from figspec.compute.fits import MODELS, FitResult, derived_naka_rushton, goodness_of_fit, judge, least_squares, setup
 from figspec.compute.resampling import generator
 from figspec.errors import FigspecWarning
+from figspec.optional import deferred
 from figspec.spec.models import LevelSpec
+
+pd = deferred("pandas")          # imported on first use: checking a spec needs no pandas
 
 CURVE_POINTS = 200
 PARAM_COLUMNS = ["unit", "model", "quantity", "value", "ci_low", "ci_high", "unit_of_value", "note"]

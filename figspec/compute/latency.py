@@ -8,7 +8,6 @@ BioSystems 136:23-34; Poisson surprise, Legendy & Salcman 1985, J Neurophysiol 5
 from __future__ import annotations
 
 import numpy as np
-import pandas as pd
 
 from figspec.compute import level_checks
 from figspec.compute.describe import About, count_text, unit_text
@@ -18,8 +17,11 @@ from figspec.compute.selection import select, spanning
 from figspec.compute.stats import bootstrap_ci, holm, signed_rank_p
 from figspec.compute.trial_counts import counts_in, first_spikes, level_bin_counts
 from figspec.data.recording import Recording
+from figspec.optional import deferred
 from figspec.spec.models import LevelSpec
 from figspec.spec.panels import LatencyPanel
+
+pd = deferred("pandas")          # imported on first use: checking a spec needs no pandas
 
 check = level_checks.check
 
@@ -37,7 +39,7 @@ def first_spike_times(rec: Recording, unit: str, panel: LatencyPanel) -> dict[fl
     out = {}
     for i, lv in enumerate(sel.levels):
         at = np.flatnonzero(sel.trial_level == i)
-        out[float(lv)] = first[at[key_order(sel.trials["trial"].to_numpy()[at])]]
+        out[float(lv)] = first[at[key_order(sel.trials["trial"][at])]]
     return out
 
 

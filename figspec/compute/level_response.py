@@ -4,7 +4,6 @@ against baseline and an optional Naka-Rushton fit."""
 from __future__ import annotations
 
 import numpy as np
-import pandas as pd
 
 from figspec.compute import level_checks
 from figspec.compute.describe import About, count_text, unit_text
@@ -14,8 +13,11 @@ from figspec.compute.selection import select, spanning
 from figspec.compute.stats import ZERO_TEXT, bootstrap_ci, holm, sem, signed_rank_p
 from figspec.compute.trial_counts import counts_in
 from figspec.data.recording import Recording
+from figspec.optional import deferred
 from figspec.spec.models import LevelSpec
 from figspec.spec.panels import LevelResponsePanel
+
+pd = deferred("pandas")          # imported on first use: checking a spec needs no pandas
 
 check = level_checks.check
 
@@ -24,8 +26,8 @@ def per_trial_responses(rec: Recording, unit: str, panel: LevelResponsePanel):
     """(levels, evoked counts, baseline counts) of every trial presented, trials in key order
     within each level (so resampling does not depend on the order of rows in the data)."""
     sel = select(rec, unit, spanning(panel.response_ms, panel.baseline_ms), panel.levels)
-    order = np.lexsort((key_order(sel.trials["trial"].to_numpy()).argsort(), sel.trial_level))
-    return (sel.trials["level"].to_numpy()[order], counts_in(sel, panel.response_ms)[order],
+    order = np.lexsort((key_order(sel.trials["trial"]).argsort(), sel.trial_level))
+    return (sel.trials["level"][order], counts_in(sel, panel.response_ms)[order],
             counts_in(sel, panel.baseline_ms)[order])
 
 

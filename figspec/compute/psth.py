@@ -6,7 +6,6 @@ from __future__ import annotations
 import warnings
 
 import numpy as np
-import pandas as pd
 
 from figspec.compute.describe import About, count_text, trial_rows, unit_text
 from figspec.compute.optimal import choose_bandwidth, choose_bin_width
@@ -15,8 +14,11 @@ from figspec.compute.smoothing import causal_smooth, gaussian_smooth
 from figspec.compute.trial_counts import level_bin_counts, level_spike_times
 from figspec.data.recording import Recording
 from figspec.errors import DataError, FigspecWarning, Problem
+from figspec.optional import deferred
 from figspec.spec.models import LevelSpec
 from figspec.spec.panels import PsthPanel
+
+pd = deferred("pandas")          # imported on first use: checking a spec needs no pandas
 
 RATE_UNITS = {"spikes_per_s": "spikes/s", "spikes_per_trial": "spikes/trial", "count": "spikes",
               "z_score": "SD from baseline"}

@@ -3,13 +3,15 @@
 from __future__ import annotations
 
 import numpy as np
-import pandas as pd
 
 from figspec.compute.describe import About, count_text, unit_text
 from figspec.compute.selection import select
 from figspec.data.recording import Recording
+from figspec.optional import deferred
 from figspec.spec.models import LevelSpec
 from figspec.spec.panels import RasterPanel
+
+pd = deferred("pandas")          # imported on first use: checking a spec needs no pandas
 
 COLUMNS = ("unit", "level", "trial", "row", "time_ms")
 
@@ -58,7 +60,7 @@ def shown_rows(sel, panel: RasterPanel) -> tuple[np.ndarray, np.ndarray]:
     seed, kept in presentation order and numbered again from 0."""
     keep = np.ones(len(sel.trials), dtype=bool)
     if panel.trials_shown is None:
-        return keep, sel.trials["row"].to_numpy()
+        return keep, sel.trials["row"]
     rng = np.random.default_rng(panel.seed)
     order = np.lexsort((rng.random(len(sel.trials)), sel.trial_level))      # a random order within each level
     rank = np.empty(len(sel.trials), dtype=np.int64)
@@ -94,8 +96,8 @@ def unit_raster(rec: Recording, unit: str, panel: RasterPanel) -> pd.DataFrame:
     order = np.lexsort((times, idx))   # NaN sorts last; empty trials have only NaN
     idx, times = idx[order], times[order]
     t = sel.trials
-    table = pd.DataFrame({"unit": unit, "level": t["level"].to_numpy()[idx],
-                          "trial": t["trial"].to_numpy()[idx], "row": rows[idx],
+    table = pd.DataFrame({"unit": unit, "level": t["level"][idx],
+                          "trial": t["trial"][idx], "row": rows[idx],
                           "n_trials": sel.n_trials[sel.trial_level[idx]], "time_ms": times})
     if panel.trials_shown is not None:
         table.insert(5, "n_shown", np.minimum(table["n_trials"].to_numpy(), panel.trials_shown))
@@ -117,7 +119,7 @@ def unit_density(rec: Recording, unit: str, panel: RasterPanel) -> pd.DataFrame:
     lo, hi = sel.to_ticks(panel.window_ms)
     edges_t = lo + (hi - lo) * np.arange(n_time + 1) // n_time                  # whole ticks
     t_bin = np.searchsorted(edges_t, sel.ticks, side="right") - 1
-    rows = sel.trials["row"].to_numpy()
+    rows = sel.trials["row"]
     n_level = sel.n_trials[sel.trial_level]
     groups = np.minimum(n_groups, n_level)                                       # no cell thinner than a trial
     group_of_trial = rows * groups // n_level

@@ -10,9 +10,9 @@ from dataclasses import dataclass
 from typing import Sequence
 
 import numpy as np
-import pandas as pd
 
 from figspec.data.recording import Recording
+from figspec.data.table import Table
 
 
 @dataclass(frozen=True)
@@ -21,7 +21,7 @@ class Selection:
 
     Attributes
     ----------
-    trials : one row per presented trial: ``pair`` (index into the recording's pairs),
+    trials : a :class:`Table`, one row per presented trial: ``pair`` (index into the recording's pairs),
         ``trial`` (id), ``level``, ``row`` (0-based position within its level, presentation
         order). Sorted by level, then row.
     levels : the distinct levels of ``trials``, ascending.
@@ -32,7 +32,7 @@ class Selection:
     ticks_per_ms : the recording's tick.
     """
 
-    trials: pd.DataFrame
+    trials: Table
     levels: np.ndarray
     trial_level: np.ndarray
     n_trials: np.ndarray
@@ -70,8 +70,7 @@ def select(rec: Recording, unit: str, window_ms: tuple[float, float],
     pairs, level = pairs[order], level[order]
     values, first, inverse, counts = np.unique(level, return_index=True, return_inverse=True, return_counts=True)
     row = np.arange(pairs.size) - np.repeat(first, counts)
-    trials = pd.DataFrame({"pair": pairs, "trial": rec.trials["trial"].to_numpy()[rec.pair_trial[pairs]],
-                           "level": level, "row": row})
+    trials = Table({"pair": pairs, "trial": rec.trials["trial"][rec.pair_trial[pairs]], "level": level, "row": row})
     # A unit's pairs are contiguous (pairs are ordered by unit), so its spikes are one slice of
     # the recording: only that slice is read, never every spike of every unit.
     lo, hi = rec.to_ticks(window_ms)

@@ -3,11 +3,13 @@
 from __future__ import annotations
 
 import numpy as np
-import pandas as pd
 
 from figspec.compute.selection import select
 from figspec.data.recording import Recording
+from figspec.optional import deferred
 from figspec.spec.models import StimulusSpec
+
+pd = deferred("pandas")          # imported on first use: checking a spec needs no pandas
 
 
 def stimulus_table(rec: Recording, unit: str, stimulus: StimulusSpec, levels=None) -> pd.DataFrame:
@@ -28,11 +30,11 @@ def stimulus_table(rec: Recording, unit: str, stimulus: StimulusSpec, levels=Non
     sel = select(rec, unit, (0.0, 0.0), levels)     # trials only: an empty window holds no spike
     n = sel.levels.size
     if stimulus.per_trial:
-        trial_rows = rec.pair_trial[sel.trials["pair"].to_numpy()]
-        starts = rec.trials["stim_start_ms"].to_numpy(dtype=float)[trial_rows]
+        trial_rows = rec.pair_trial[sel.trials["pair"]]
+        starts = rec.trials["stim_start_ms"][trial_rows]
         start = _per_level(starts, sel.trial_level, n, np.minimum)
         start_max = _per_level(starts, sel.trial_level, n, np.maximum)
-        stop = rec.trials["stim_stop_ms"].to_numpy(dtype=float)[trial_rows]
+        stop = rec.trials["stim_stop_ms"][trial_rows]
         stop_min = _per_level(stop, sel.trial_level, n, np.minimum)
         stop_max = _per_level(stop, sel.trial_level, n, np.maximum)
     else:

@@ -2,12 +2,13 @@
 
 Sources (CSV, Parquet, NWB ...) only read their format and rename columns to the canonical
 names of :mod:`figspec.data.columns`; everything about trials, clocks, alignment and units
-happens here, once. Times become integer ticks as they are read (``np.rint(t * ticks per
-unit)``), so alignment subtracts integers.
+happens here, once, with numpy on the columns of :class:`figspec.data.table.Table` (no
+pandas). Times become integer ticks as they are read (``np.rint(t * ticks per unit)``), so
+alignment subtracts integers.
 
-Canonical spike frame: ``time``, ``unit`` (unless the source names its one unit), ``key0`` ...
+Canonical spike table: ``time``, ``unit`` (unless the source names its one unit), ``key0`` ...
 (the trial key; absent when spikes are assigned to trials by time) and, without a trial table,
-``level``. Canonical trial frame: ``key0`` ..., ``level`` and optionally ``onset``, ``offset``,
+``level``. Canonical trial table: ``key0`` ..., ``level`` and optionally ``onset``, ``offset``,
 ``start``, ``stop``, ``event:NAME``, ``unit`` and ``where:COLUMN``.
 
 Clocks (``Layout.clock``): ``aligned``, spike times are already relative to the alignment
@@ -23,11 +24,12 @@ import warnings
 from dataclasses import dataclass, field
 
 import numpy as np
-import pandas as pd
 
 from figspec.data.by_time import assign_by_time
 from figspec.data.keep import select_trials, shown
 from figspec.data.recording import Recording
+from figspec.data.table import (Table, factorize, first_of_each, index_in, is_missing, lookup, missing, numbers, row_codes,
+                                text)
 from figspec.data.trials_from_spikes import TrialCounts, trials_from_spikes
 from figspec.errors import DataError, FigspecWarning, Loc, Problem
 from figspec.spec.selection import TrialSelection
@@ -63,96 +65,140 @@ class Layout:
         return "onset" if self.align == "onset" else f"event:{self.align}"
 
 
-def to_ticks(values: pd.Series, layout: Layout, what: str, name: str) -> np.ndarray:
+def to_ticks(values: np.ndarray, layout: Layout, what: str, name: str) -> np.ndarray:
     """Times in the layout's time unit as int64 ticks; every value must be a finite number."""
     loc = layout.locs.get(name, ())
-    numbers = _numbers(values, what, loc, layout.where)
-    scaled = numbers * (layout.ticks_per_second * SECONDS_PER[layout.time_unit])
-    if np.any(np.abs(scaled) >= LARGEST_TICK):
+    values = _numbers(values, what, loc, layout.where)
+    scaled = values * (layout.ticks_per_second * SECONDS_PER[layout.time_unit])
+    largest = max(abs(float(scaled.min())), abs(float(scaled.max()))) if scaled.size else 0.0
+    if largest >= LARGEST_TICK:
         raise DataError(Problem(f"{what} are too large to hold in {1e6 / layout.ticks_per_second:g}-µs ticks "
-                                f"(is time_unit = {layout.time_unit!r} right?)", loc, shown(numbers[np.argmax(np.abs(scaled))])))
-    return np.rint(scaled).astype(np.int64)
+                                f"(is time_unit = {layout.time_unit!r} right?)", loc, shown(values[np.argmax(np.abs(scaled))])))
+    return np.rint(scaled, out=scaled).astype(np.int64)
 
 
-def _numbers(values: pd.Series, what: str, loc: Loc, where: str) -> np.ndarray:
-    out = pd.to_numeric(values, errors="coerce").to_numpy(dtype=float)
+def _numbers(values: np.ndarray, what: str, loc: Loc, where: str) -> np.ndarray:
+    out = numbers(values)
     bad = ~np.isfinite(out)
     if bad.any():
-        first = values[bad].iloc[0]
+        first = np.asarray(values)[np.argmax(bad)]
         raise DataError(Problem(f"{what} must be finite numbers in every row of {where}; {int(bad.sum())} rows "
-                                "are not", loc, "an empty field" if pd.isna(first) else shown(first)))
+                                "are not", loc, "an empty field" if is_missing(first) else shown(first)))
     return out
 
 
-def _key_columns(frame: pd.DataFrame) -> list[str]:
-    return sorted((c for c in frame.columns if re.fullmatch(r"key\d+", c)), key=lambda c: int(c[3:]))
+def _key_columns(table: Table) -> list[str]:
+    return sorted((c for c in table if re.fullmatch(r"key\d+", c)), key=lambda c: int(c[3:]))
 
 
-def normalise_keys(spikes: pd.DataFrame | None, trials: pd.DataFrame, keys: list[str]) -> None:
-    """Each key column as integers when every value in both tables is a whole number, else as
-    strings (in place)."""
+def key_values(columns: list[np.ndarray]) -> list[np.ndarray]:
+    """One key column as it appears in several tables: integers when every value in all of
+    them is a whole number, else stripped text."""
+    if all(np.asarray(c).dtype.kind in "iu" for c in columns):
+        return [np.asarray(c, dtype=np.int64) for c in columns]
+    as_numbers = [numbers(c) for c in columns]
+    if all(np.all(np.isfinite(n) & (n == np.round(n))) for n in as_numbers):
+        return [n.astype(np.int64) for n in as_numbers]
+    return [text(c) for c in columns]
+
+
+def check_keys_present(spikes: Table, trials: Table, keys: list[str], layout: Layout) -> None:
+    """A row whose trial key is empty belongs to no trial: an error naming the table and count."""
+    for name, table, prefix in (("spike table", spikes, "spikes:"), ("trial table", trials, "")):
+        for key in keys:
+            if key in table and table[key].dtype.kind not in "iub":
+                empty = int(np.count_nonzero(missing(table[key])))
+                if empty:
+                    raise DataError(Problem(f"the trial key is empty in {empty} rows of the {name} of {layout.where}",
+                                            layout.locs.get(prefix + key, layout.locs.get("key0", ())), "an empty field"))
+
+
+def normalise_keys(spikes: Table | None, trials: Table, keys: list[str]) -> tuple[Table | None, Table]:
+    """The spike and trial tables with each key column as integers when every value in both
+    is a whole number, else as strings."""
     for key in keys:
-        series = [trials[key]] + ([spikes[key]] if spikes is not None and key in spikes else [])
-        numeric = [pd.to_numeric(s, errors="coerce") for s in series]
-        whole = all(n.notna().all() and (n == n.round()).all() for n in numeric)
-        converted = [n.astype("int64") if whole else s.astype(str).str.strip() for n, s in zip(numeric, series)]
-        trials[key] = converted[0]
-        if len(converted) > 1:
-            spikes[key] = converted[1]
+        both = spikes is not None and key in spikes
+        values = key_values([trials[key]] + ([spikes[key]] if both else []))
+        trials = trials.with_columns({key: values[0]})
+        if both:
+            spikes = spikes.with_columns({key: values[1]})
+    return spikes, trials
 
 
-def assemble(spikes: pd.DataFrame, trials: pd.DataFrame | None, layout: Layout) -> Recording:
-    """Build a :class:`Recording` from canonical frames laid out as ``layout`` says."""
-    spikes = spikes.copy()
-    if "unit" in spikes and spikes["unit"].isna().any():
-        raise DataError(Problem(f"the unit column is empty in {int(spikes['unit'].isna().sum())} rows of "
-                                f"{layout.where}", layout.locs.get("unit", ()), "an empty field"))
+def assemble(spikes, trials, layout: Layout) -> Recording:
+    """Build a :class:`Recording` from canonical tables (or DataFrames) laid out as ``layout`` says."""
+    spikes = Table.of(spikes)
+    trials = None if trials is None else Table.of(trials)
+    unit_names, unit_code = unit_codes(spikes["unit"], layout)
+    spikes = spikes.select([c for c in spikes if c != "unit"])          # (large arrays are let go when done)
     spike_t = to_ticks(spikes["time"], layout, "spike times", "time")
     if trials is None:
-        spikes["level"] = _numbers(spikes["level"], "levels", layout.locs.get("level", ()), layout.where)
+        spikes = spikes.with_columns({"level": _numbers(spikes["level"], "levels", layout.locs.get("level", ()),
+                                                        layout.where)})
         trials = trials_from_spikes(spikes, _key_columns(spikes), layout.counts, layout.where)
     keys = _key_columns(trials)
-    normalise_keys(spikes, trials := trials.copy(), keys)
+    check_keys_present(spikes, trials, keys, layout)
+    spikes, trials = normalise_keys(spikes, trials, keys)
     table, times = trial_table(trials, keys, layout)
     keep, removed = select_trials(table, keys, layout.keep, layout.keep_loc)
-    spikes["unit"] = spikes["unit"].astype(str)
-    check_unit_names(spikes["unit"], layout)
+    check_unit_names(unit_names, layout)
     per_unit = "unit" in table
-    names = set(spikes["unit"].unique().tolist()) | (set(table["unit"].unique().tolist()) if per_unit else set())
+    names = set(unit_names.tolist()) | (set(np.unique(table["unit"]).tolist()) if per_unit else set())
     units = sorted(names, key=natural_key)
+    spike_unit = index_in(units, unit_names)[unit_code]
+    del unit_code
     pair_unit, pair_trial = pairs(table, units)
     if layout.assign == "by_time":
-        pair, outside = assign_by_time(spike_t, spikes["unit"], units, table, times, layout)
+        pair, outside = assign_by_time(spike_t, spike_unit, units, table, times, layout)
         removed += (("spikes outside every trial", outside),) if outside else ()
         spike_t, pair = spike_t[pair >= 0], pair[pair >= 0]
     else:
-        pair = pair_of_spikes(spikes, table, keys, units, pair_unit, pair_trial, layout)
-    align = times["align"][pair_trial][pair] if layout.clock != "aligned" else 0
-    ticks = spike_t - align
-    check_inside_extent(ticks, table, pair_trial[pair], layout)
+        pair = pair_of_spikes(spikes, spike_unit, table, keys, pair_unit, pair_trial, layout)
+    del spikes, spike_unit
+    ticks = spike_t                                                     # aligned in place
+    if layout.clock != "aligned":
+        ticks -= times["align"][pair_trial][pair]
+    check_inside_extent(ticks, table, pair_trial, pair, layout)
     check_durations(table, layout)
     order = sort_order(pair, ticks)
     offsets = np.zeros(pair_unit.size + 1, dtype=np.int64)
     np.cumsum(np.bincount(pair, minlength=pair_unit.size), out=offsets[1:])
     shown_cols = ["trial", "level", "stim_start_ms", "stim_stop_ms", "extent_lo_ms", "extent_hi_ms"]
     shown_cols += (["unit"] if per_unit else []) + [c for c in table if c.startswith("where:")]
-    rec = Recording(units=tuple(units), trials=table[shown_cols], pair_unit=pair_unit, pair_trial=pair_trial,
+    rec = Recording(units=tuple(units), trials=table.select(shown_cols), pair_unit=pair_unit, pair_trial=pair_trial,
                     offsets=offsets, ticks=ticks[order], ticks_per_ms=layout.ticks_per_ms)
     return rec.keep_trials(keep, removed)
 
 
-def check_inside_extent(ticks: np.ndarray, table: pd.DataFrame, trial_of_spike: np.ndarray, layout: Layout,
+def unit_codes(values: np.ndarray, layout: Layout) -> tuple[np.ndarray, np.ndarray]:
+    """(unit names as stripped text, each spike's code into them). The distinct values are
+    found first and only they are checked and turned into text; an empty field is an error."""
+    try:
+        distinct, codes = factorize(values)
+    except TypeError:                       # text mixed with None or NaN, which do not sort with it
+        distinct, codes = factorize(np.where(missing(values), "", np.asarray(values).astype(str)))
+    empty = np.flatnonzero(missing(distinct))
+    if empty.size:
+        rows = int(np.count_nonzero(np.isin(codes, empty)))
+        raise DataError(Problem(f"the unit column is empty in {rows} rows of {layout.where}",
+                                layout.locs.get("unit", ()), "an empty field"))
+    names, renamed = np.unique(text(distinct), return_inverse=True)    # " u1" and "u1" are one unit
+    renamed = renamed.reshape(-1)
+    return names, (codes if np.array_equal(renamed, np.arange(distinct.size)) else renamed[codes])
+
+
+def check_inside_extent(ticks: np.ndarray, table: Table, pair_trial: np.ndarray, pair: np.ndarray, layout: Layout,
                         chunk: int = 1 << 20) -> None:
     """Spikes far outside their own trial's recorded extent mean the time unit or the clock is
     wrong: an error when none is inside, a warning when most are not. Counted in chunks, so the
     check needs no full-size temporary arrays."""
-    lo = table["extent_lo_ms"].to_numpy(dtype=float) * layout.ticks_per_ms
-    hi = table["extent_hi_ms"].to_numpy(dtype=float) * layout.ticks_per_ms
+    lo = table["extent_lo_ms"].astype(float) * layout.ticks_per_ms
+    hi = table["extent_hi_ms"].astype(float) * layout.ticks_per_ms
     if not (np.isfinite(lo).any() or np.isfinite(hi).any()):
         return
     outside = 0
     for start in range(0, ticks.size, chunk):
-        t, k = ticks[start:start + chunk], trial_of_spike[start:start + chunk]
+        t, k = ticks[start:start + chunk], pair_trial[pair[start:start + chunk]]
         outside += int(np.count_nonzero((t < lo[k]) | (t >= hi[k])))
     hint = (f"is time_unit = {layout.time_unit!r} right, and are spike and trial times on the same clock "
             f"({layout.clock!r})?")
@@ -164,12 +210,11 @@ def check_inside_extent(ticks: np.ndarray, table: pd.DataFrame, trial_of_spike: 
                       f"{hint}", FigspecWarning, stacklevel=3)
 
 
-def check_unit_names(units: pd.Series, layout: Layout) -> None:
+def check_unit_names(names: np.ndarray, layout: Layout) -> None:
     """Unit names are drawn as text: one with a control character would make an invalid SVG."""
     from figspec.spec.fields import control_characters
 
-    names = units.unique()
-    bad = [name for name in names if control_characters(name)]
+    bad = [name for name in names.tolist() if control_characters(name)]
     if bad:
         raise DataError(Problem(f"unit names may not hold control characters ({len(bad)} do, e.g. "
                                 f"{bad[0]!r})", layout.locs.get("unit", ()), layout.where))
@@ -179,16 +224,16 @@ LONGEST_STIMULUS_MS = 10_000     # common practice: single-unit stimuli last ms 
 SHORTEST_TRIAL_MS = 1.0
 
 
-def check_durations(table: pd.DataFrame, layout: Layout) -> None:
+def check_durations(table: Table, layout: Layout) -> None:
     """Stimuli that last minutes, or trials recorded for less than a millisecond, mean the
     time unit is likely wrong (ms read as s, or s as ms): a warning, since a lab may mean it."""
     hint = f"is time_unit = {layout.time_unit!r} right?"
-    stimulus = (table["stim_stop_ms"] - table["stim_start_ms"]).to_numpy(dtype=float)
+    stimulus = table["stim_stop_ms"] - table["stim_start_ms"]
     stimulus = stimulus[np.isfinite(stimulus)]
     if stimulus.size and np.median(stimulus) > LONGEST_STIMULUS_MS:
         warnings.warn(f"{layout.where}: the stimulus lasts {np.median(stimulus) / 1000:g} s in the median trial: "
                       f"{hint}", FigspecWarning, stacklevel=3)
-    extent = (table["extent_hi_ms"] - table["extent_lo_ms"]).to_numpy(dtype=float)
+    extent = table["extent_hi_ms"] - table["extent_lo_ms"]
     extent = extent[np.isfinite(extent)]
     if extent.size and np.median(extent) < SHORTEST_TRIAL_MS:
         warnings.warn(f"{layout.where}: each trial was recorded for {np.median(extent):g} ms in the median trial: "
@@ -208,47 +253,57 @@ def sort_order(pair: np.ndarray, ticks: np.ndarray) -> np.ndarray | slice:
     return by_time[np.argsort(pair[by_time], kind="stable")]
 
 
-def trial_table(trials: pd.DataFrame, keys: list[str], layout: Layout) -> tuple[pd.DataFrame, dict]:
+def trial_table(trials: Table, keys: list[str], layout: Layout) -> tuple[Table, dict]:
     """The trial table in presentation order with its display columns, and its event times in
     ticks (``align``, and ``start``/``stop`` on the data's clock when given)."""
     locs, where = layout.locs, layout.where
-    trials = trials.copy()
-    trials["level"] = _numbers(trials["level"], "levels", locs.get("level", ()), where)
+    level = _numbers(trials["level"], "levels", locs.get("level", ()), where)
     ticks = {name: to_ticks(trials[name], layout, f"{name} times", name)
              for name in ("onset", "offset", "start", "stop") if name in trials}
     ticks.update({c: to_ticks(trials[c], layout, f"{c[6:]} times", c) for c in trials if c.startswith("event:")})
     align = ticks.get(layout.align_column, np.zeros(len(trials), dtype=np.int64))
+    if "unit" in trials:
+        trials = trials.with_columns({"unit": text(trials["unit"])})
     order = _presentation_order(trials, ticks, align, layout)
-    trials = trials.iloc[order].reset_index(drop=True)
+    trials = trials.with_columns({"level": level}).take(order)
     ticks = {k: v[order] for k, v in ticks.items()}
     align = align[order]
     per_ms = layout.ticks_per_ms
     onset = ticks.get("onset", align)
-    trials["stim_start_ms"] = (onset - align) / per_ms
+    added = {"stim_start_ms": (onset - align) / per_ms}
     if "offset" in ticks:
         if np.any(ticks["offset"] <= onset):
             raise DataError(Problem("every stimulus offset must come after its onset", locs.get("offset", ()), where))
-        trials["stim_stop_ms"] = (ticks["offset"] - align) / per_ms
+        added["stim_stop_ms"] = (ticks["offset"] - align) / per_ms
     else:
-        trials["stim_stop_ms"] = np.nan
+        added["stim_stop_ms"] = np.full(len(trials), np.nan)
     if "start" in ticks and "stop" in ticks and np.any(ticks["stop"] <= ticks["start"]):
         bad = int(np.count_nonzero(ticks["stop"] <= ticks["start"]))
         raise DataError(Problem(f"every trial must stop after it starts; {bad} trials do not", locs.get("stop", ()),
                                 where))
-    trials["extent_lo_ms"], trials["extent_hi_ms"] = _extent(ticks, align, layout)
-    trials["trial"] = trials[keys[0]] if len(keys) == 1 else trials[keys].astype(str).agg("/".join, axis=1)
+    added["extent_lo_ms"], added["extent_hi_ms"] = _extent(ticks, align, layout)
+    added["trial"] = trials[keys[0]] if len(keys) == 1 else joined_keys([trials[k] for k in keys])
+    trials = trials.with_columns(added)
     _unique_trials(trials, keys, layout)
     return trials, {**ticks, "align": align}
 
 
-def _presentation_order(trials: pd.DataFrame, ticks: dict, align: np.ndarray, layout: Layout) -> np.ndarray:
+def joined_keys(columns: list[np.ndarray]) -> np.ndarray:
+    """The values of a key of several columns shown as one text, joined by "/"."""
+    out = np.asarray(columns[0]).astype(str)
+    for column in columns[1:]:
+        out = np.char.add(np.char.add(out, "/"), np.asarray(column).astype(str))
+    return out
+
+
+def _presentation_order(trials: Table, ticks: dict, align: np.ndarray, layout: Layout) -> np.ndarray:
     rows = np.arange(len(trials))
     if layout.clock == "session":
         when = ticks.get("start", align)
-        group = trials["unit"].astype(str).to_numpy() if "unit" in trials else np.zeros(len(trials))
+        group = trials["unit"] if "unit" in trials else np.zeros(len(trials))
         return np.lexsort((rows, when, group))
     if "unit" in trials:
-        return np.lexsort((rows, trials["unit"].astype(str).to_numpy()))
+        return np.lexsort((rows, trials["unit"]))
     return rows
 
 
@@ -268,24 +323,24 @@ def _extent(ticks: dict, align: np.ndarray, layout: Layout) -> tuple[np.ndarray,
     return lo, hi
 
 
-def _unique_trials(trials: pd.DataFrame, keys: list[str], layout: Layout) -> None:
+def _unique_trials(trials: Table, keys: list[str], layout: Layout) -> None:
     per_unit = "unit" in trials
-    dup = trials.duplicated((["unit"] if per_unit else []) + keys)
+    codes, _ = row_codes([trials[c] for c in (["unit"] if per_unit else []) + keys])
+    dup = ~first_of_each(codes)
     if dup.any():
-        first = trials.loc[dup].iloc[0]
+        first = int(np.argmax(dup))
         raise DataError(Problem(f"the trial key must be unique{' per unit' if per_unit else ''} in the trial table; "
                                 f"{int(dup.sum())} rows repeat a key (a key of several columns, e.g. level and "
                                 "trial number, tells trials apart when numbers restart)",
-                                layout.locs.get("key0", ()), shown([first[k] for k in keys]) if len(keys) > 1
-                                else shown(first[keys[0]])))
+                                layout.locs.get("key0", ()), shown([trials[k][first] for k in keys]) if len(keys) > 1
+                                else shown(trials[keys[0]][first])))
 
 
-def pairs(trials: pd.DataFrame, units: list[str]) -> tuple[np.ndarray, np.ndarray]:
+def pairs(trials: Table, units: list[str]) -> tuple[np.ndarray, np.ndarray]:
     """(unit index, trial row) of every (unit, trial) pair, ordered by unit, then presentation:
     every unit saw every trial, unless the trial table says which unit each trial belongs to."""
     if "unit" in trials:
-        unit_index = {u: i for i, u in enumerate(units)}
-        pair_unit = trials["unit"].astype(str).map(unit_index).to_numpy(dtype=np.int64)
+        pair_unit = index_in(units, trials["unit"])
         pair_trial = np.arange(len(trials), dtype=np.int64)
         order = np.lexsort((pair_trial, pair_unit))
         return pair_unit[order], pair_trial[order]
@@ -293,21 +348,50 @@ def pairs(trials: pd.DataFrame, units: list[str]) -> tuple[np.ndarray, np.ndarra
             np.tile(np.arange(len(trials), dtype=np.int64), len(units)))
 
 
-def pair_of_spikes(spikes: pd.DataFrame, trials: pd.DataFrame, keys: list[str], units: list[str],
-                   pair_unit: np.ndarray, pair_trial: np.ndarray, layout: Layout) -> np.ndarray:
+def pair_of_spikes(spikes: Table, spike_unit: np.ndarray, trials: Table, keys: list[str], pair_unit: np.ndarray,
+                   pair_trial: np.ndarray, layout: Layout) -> np.ndarray:
     """For each spike, the index of its (unit, trial) pair by the trial key. Spikes whose key
-    the trial table does not have are an error (count and first three keys)."""
-    frame = pd.DataFrame({"unit": np.asarray(units, dtype=object)[pair_unit].astype(str),
-                          **{k: trials[k].to_numpy()[pair_trial] for k in keys}, "pair": np.arange(pair_unit.size)})
-    joined = spikes[["unit", *keys]].merge(frame, on=["unit", *keys], how="left", sort=False)
-    lost = joined["pair"].isna().to_numpy()
+    the trial table does not have are an error (count and first three keys).
+
+    Each key column is coded against the trial table's distinct values, the codes combine with
+    the unit into one number per spike, and that number indexes a table of pairs (or, when the
+    combinations are too many for a table, is looked up by bisection)."""
+    coded = [factorize(trials[k]) for k in keys]
+    size = max(int(pair_unit.max(initial=0)) + 1, 1) * int(np.prod([max(u.size, 1) for u, _ in coded], dtype=float))
+    if size < 2 ** 62:                              # in place: a spike costs a few bytes of temporaries
+        spike_code, pair_code = spike_unit.astype(np.int64), pair_unit.astype(np.int64)
+        lost = spike_code < 0
+        for k, (uniques, trial_code) in zip(keys, coded):
+            found = lookup(uniques, spikes[k])
+            lost |= found < 0
+            spike_code *= uniques.size
+            spike_code += found
+            pair_code = pair_code * uniques.size + trial_code[pair_trial]
+        del found
+    else:                                           # too many combinations for one number: codes row by row
+        pair_code, spike_code = row_codes([pair_unit] + [trials[k][pair_trial] for k in keys],
+                                          [spike_unit] + [spikes[k] for k in keys])
+        lost = spike_code < 0
+    spike_code[lost] = 0
+    if size <= max(8 * pair_code.size, 1 << 22):
+        of_code = np.full(int(size), -1, dtype=np.int64)
+        of_code[pair_code] = np.arange(pair_code.size)
+        pair = of_code[spike_code]
+    else:
+        order = np.argsort(pair_code, kind="stable")
+        at = np.clip(np.searchsorted(pair_code[order], spike_code), 0, max(order.size - 1, 0))
+        pair = np.where(pair_code[order][at] == spike_code, order[at], -1) if order.size else spike_code - 1
+    pair[lost] = -1
+    lost = pair < 0
     if lost.any():
-        missing = spikes.loc[lost, keys].drop_duplicates().head(3)
-        first = ", ".join(shown(list(r)) if len(keys) > 1 else shown(r[0]) for r in missing.itertuples(index=False))
-        raise DataError(Problem(f"{int(lost.sum())} spikes belong to {len(spikes.loc[lost, keys].drop_duplicates())} "
+        lost_keys, first_lost = row_codes([spikes[k][lost] for k in keys])[0], np.flatnonzero(lost)
+        distinct = np.flatnonzero(first_of_each(lost_keys))
+        first = ", ".join(shown([spikes[k][first_lost[i]] for k in keys]) if len(keys) > 1
+                          else shown(spikes[keys[0]][first_lost[i]]) for i in distinct[:3])
+        raise DataError(Problem(f"{int(lost.sum())} spikes belong to {distinct.size} "
                                 f"trial keys that are not in the trial table of {layout.where}",
                                 layout.locs.get("key0", ()), f"first: {first}"))
-    return joined["pair"].to_numpy(dtype=np.int64)
+    return pair
 
 
 def natural_key(name: str) -> tuple:

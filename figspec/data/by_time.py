@@ -6,16 +6,16 @@ from __future__ import annotations
 import warnings
 
 import numpy as np
-import pandas as pd
 
 from figspec.data.keep import shown
 from figspec.errors import DataError, FigspecWarning, Problem
 
 
-def assign_by_time(spike_t: np.ndarray, spike_unit: pd.Series, units: list[str], trials: pd.DataFrame,
+def assign_by_time(spike_t: np.ndarray, spike_unit: np.ndarray, units: list[str], trials,
                    times: dict, layout) -> tuple[np.ndarray, int]:
     """(pair index of each spike, -1 for spikes in no trial; the number of those), for pairs
-    ordered as :func:`figspec.data.assemble.pairs` orders them (every unit saw every trial).
+    ordered as :func:`figspec.data.assemble.pairs` orders them (every unit saw every trial);
+    ``spike_unit`` is each spike's index into ``units``.
 
     Overlapping trials are an error naming two of them; so is a recording where no spike falls
     inside any trial (the clock or the time unit is then probably wrong)."""
@@ -25,21 +25,20 @@ def assign_by_time(spike_t: np.ndarray, spike_unit: pd.Series, units: list[str],
     start, stop = times["start"], times["stop"]
     if np.any(stop <= start):
         i = int(np.flatnonzero(stop <= start)[0])
-        raise DataError(Problem(f"trial {shown(trials['trial'].iloc[i])} stops before it starts",
+        raise DataError(Problem(f"trial {shown(trials['trial'][i])} stops before it starts",
                                 layout.locs.get("stop", ()), layout.where))
     order = np.argsort(start, kind="stable")
     s, e = start[order], stop[order]
     overlap = np.flatnonzero(e[:-1] > s[1:])
     if overlap.size:
         a, b = order[overlap[0]], order[overlap[0] + 1]
-        raise DataError(Problem(f"trials {shown(trials['trial'].iloc[a])} and {shown(trials['trial'].iloc[b])} "
+        raise DataError(Problem(f"trials {shown(trials['trial'][a])} and {shown(trials['trial'][b])} "
                                 "overlap in time, so a spike between them belongs to both",
                                 layout.locs.get("start", ()), layout.where))
     k = np.searchsorted(s, spike_t, side="right") - 1
     inside = (k >= 0) & (spike_t < e[np.clip(k, 0, None)])
     trial_row = np.where(inside, order[np.clip(k, 0, None)], -1)
-    unit_index = pd.Series(np.arange(len(units)), index=units)[spike_unit.to_numpy()].to_numpy()
-    pair = np.where(inside, unit_index * len(trials) + trial_row, -1)
+    pair = np.where(inside, spike_unit * len(trials) + trial_row, -1)
     outside = int((~inside).sum())
     if spike_t.size and outside == spike_t.size:
         raise DataError(Problem("no spike falls inside any trial's start and stop: is time_unit right, and are "

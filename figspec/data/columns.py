@@ -8,8 +8,7 @@ trial key), ``time``, ``level``, ``onset``, ``offset``, ``start``, ``stop``, ``e
 
 from __future__ import annotations
 
-import pandas as pd
-
+from figspec.data.table import Table
 from figspec.errors import DataError, Loc, Problem
 from figspec.spec.sources import SourceBase, TableSource
 
@@ -54,6 +53,7 @@ def key_paths(src: SourceBase, loc: Loc, plans: tuple[Plan, Plan | None]) -> dic
     locs: dict[str, Loc] = {}
     for plan in plans:
         locs.update({k: v[1] for k, v in (plan or {}).items()})
+    locs.update({f"spikes:{k}": v[1] for k, v in (plans[0] or {}).items()})     # the spike table's own mapping
     for name in ("onset", "offset", "level", "start", "stop", "time", "unit", "key0"):
         locs.setdefault(name, loc)
     return locs
@@ -66,10 +66,10 @@ def missing_columns(header: list[str], plan: Plan, where: str) -> list[Problem]:
             for column, loc in plan.values() if column not in header]
 
 
-def rename(frame: pd.DataFrame, plan: Plan, where: str) -> pd.DataFrame:
-    """The planned columns of ``frame`` under their canonical names (a column may serve twice,
-    e.g. a level column that is also part of the trial key)."""
+def rename(frame, plan: Plan, where: str) -> Table:
+    """The planned columns of ``frame`` (a Table or DataFrame) under their canonical names (a
+    column may serve twice, e.g. a level column that is also part of the trial key)."""
     problems = missing_columns([str(c) for c in frame.columns], plan, where)
     if problems:
         raise DataError(problems)
-    return pd.DataFrame({canonical: frame[column].to_numpy() for canonical, (column, _) in plan.items()})
+    return Table({canonical: frame[column] for canonical, (column, _) in plan.items()})

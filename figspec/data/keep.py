@@ -5,8 +5,8 @@ removed; an unknown key or a rule that keeps no trial is an error."""
 from __future__ import annotations
 
 import numpy as np
-import pandas as pd
 
+from figspec.data.table import numbers, text
 from figspec.errors import DataError, Loc, Problem
 from figspec.spec.selection import Range, TrialSelection
 
@@ -24,9 +24,9 @@ def shown(value) -> str:
     return repr(str(value))
 
 
-def _same_type(value, column: pd.Series):
+def _same_type(value, column: np.ndarray | None):
     """A key value in the type figspec gave the key column (integers or strings), or None."""
-    if pd.api.types.is_integer_dtype(column):
+    if column is not None and column.dtype.kind in "iu":
         if isinstance(value, bool):
             return None
         if isinstance(value, int) or (isinstance(value, float) and value.is_integer()):
@@ -38,44 +38,47 @@ def _same_type(value, column: pd.Series):
     return str(value)
 
 
-def _matches(series: pd.Series, condition) -> np.ndarray:
+def _matches(values: np.ndarray, condition) -> np.ndarray:
     if isinstance(condition, Range):
-        values = pd.to_numeric(series, errors="coerce").to_numpy(dtype=float)
         low = -np.inf if condition.min is None else condition.min
         high = np.inf if condition.max is None else condition.max
-        return (values >= low) & (values <= high)
+        as_numbers = numbers(values)
+        return (as_numbers >= low) & (as_numbers <= high)
     options = condition if isinstance(condition, list) else [condition]
-    hit = np.zeros(len(series), dtype=bool)
+    hit = np.zeros(len(values), dtype=bool)
     for option in options:
         if isinstance(option, bool):
-            text = series.astype(str).str.strip().str.lower()
-            hit |= (series.to_numpy() == option) if series.dtype == bool else text.isin(
-                ["true", "1"] if option else ["false", "0"]).to_numpy()
+            hit |= (values == option) if values.dtype == bool else np.isin(
+                np.char.lower(text(values)), ["true", "1"] if option else ["false", "0"])
         elif isinstance(option, (int, float)):
-            hit |= pd.to_numeric(series, errors="coerce").to_numpy(dtype=float) == float(option)
+            hit |= numbers(values) == float(option)
         else:
-            hit |= series.astype(str).to_numpy() == option
+            hit |= values.astype(str) == option
     return hit
 
 
-def select_trials(trials: pd.DataFrame, keys: list[str], rules: TrialSelection,
+def select_trials(trials, keys: list[str], rules: TrialSelection,
                   loc: Loc) -> tuple[np.ndarray, tuple[tuple[str, int], ...]]:
-    """(mask of kept trials, (rule, trials removed) for each rule) of ``rules`` on ``trials``."""
+    """(mask of kept trials, (rule, trials removed) for each rule) of ``rules`` on ``trials``
+    (a :class:`figspec.data.table.Table`)."""
     keep = np.ones(len(trials), dtype=bool)
     removed = []
     if rules.exclude:
-        key_tuples = list(zip(*(trials[k].tolist() for k in keys)))
-        index = {t: i for i, t in enumerate(key_tuples)}
         gone = np.zeros(len(trials), dtype=bool)
         for j, value in enumerate(rules.exclude):
             parts = value if isinstance(value, list) else [value]
             if len(keys) == 1 and len(parts) > 1:          # a key of several columns, shown joined by "/"
-                parts = ["/".join(str(_same_type(v, pd.Series([], dtype=object))) for v in parts)]
+                parts = ["/".join(str(_same_type(v, None)) for v in parts)]
             typed = tuple(_same_type(v, trials[k]) for v, k in zip(parts, keys)) if len(parts) == len(keys) else None
-            if typed is None or typed not in index:
+            hit = None
+            if typed is not None and None not in typed:
+                hit = np.ones(len(trials), dtype=bool)
+                for v, k in zip(typed, keys):
+                    hit &= (trials[k] == v) if trials[k].dtype.kind in "iu" else (trials[k].astype(str) == v)
+            if hit is None or not hit.any():
                 raise DataError(Problem(f"no trial has this key ({len(keys)} value(s): {', '.join(keys)})",
                                         loc + ("exclude", j), shown(value)))
-            gone[index[typed]] = True
+            gone |= hit
         removed.append((f"exclude {len(rules.exclude)} trials by key", int((keep & gone).sum())))
         keep &= ~gone
     for column, condition in rules.where.items():

@@ -11,15 +11,15 @@ from __future__ import annotations
 from pathlib import Path
 
 import numpy as np
-import pandas as pd
 
 from figspec.data.csv_source import check_file
+from figspec.data.table import Table
 from figspec.errors import DataError, Loc, Problem
 from figspec.optional import require
 from figspec.spec.sources import NwbSource
 
 
-def read(src: NwbSource, folder: Path, loc: Loc, plans=None, units=None) -> tuple[pd.DataFrame, pd.DataFrame]:
+def read(src: NwbSource, folder: Path, loc: Loc, plans=None, units=None) -> tuple[Table, Table]:
     pynwb = require("pynwb", "format = 'nwb'", loc + ("format",))
     path = folder / src.file
     check_file(path, loc + ("file",))
@@ -34,7 +34,7 @@ def read(src: NwbSource, folder: Path, loc: Loc, plans=None, units=None) -> tupl
                                 loc + ("file",))) from None
 
 
-def _spikes(nwb, src: NwbSource, path: Path, loc: Loc) -> pd.DataFrame:
+def _spikes(nwb, src: NwbSource, path: Path, loc: Loc) -> Table:
     if nwb.units is None:
         raise DataError(Problem(f"{path} has no units table (spike times)", loc + ("file",)))
     times = np.asarray(nwb.units.spike_times.data[:], dtype=float)
@@ -47,10 +47,10 @@ def _spikes(nwb, src: NwbSource, path: Path, loc: Loc) -> pd.DataFrame:
     else:
         raise DataError(Problem(f"the units table of {path} has no column {src.unit_names!r}",
                                 loc + ("unit_names",), f"columns: {', '.join(nwb.units.colnames)}"))
-    return pd.DataFrame({"unit": np.repeat(np.asarray(names, dtype=object), counts), "time": times})
+    return Table({"unit": np.repeat(np.asarray(names, dtype=str), counts), "time": times})
 
 
-def _trials(nwb, src: NwbSource, path: Path, loc: Loc) -> pd.DataFrame:
+def _trials(nwb, src: NwbSource, path: Path, loc: Loc) -> Table:
     if nwb.trials is None:
         raise DataError(Problem(f"{path} has no trials table", loc + ("file",)))
     table = nwb.trials
@@ -68,4 +68,4 @@ def _trials(nwb, src: NwbSource, path: Path, loc: Loc) -> pd.DataFrame:
     out = {"key0": np.asarray(table.id[:]), "start": np.asarray(table["start_time"].data[:], dtype=float),
            "stop": np.asarray(table["stop_time"].data[:], dtype=float)}
     out.update({name: np.asarray(table[column].data[:]) for name, (column, _) in wanted.items() if column is not None})
-    return pd.DataFrame(out)
+    return Table(out)

@@ -6,17 +6,18 @@ from __future__ import annotations
 
 from pathlib import Path
 
-import pandas as pd
+import numpy as np
 
 from figspec.data.columns import Plan, missing_columns
 from figspec.data.csv_source import check_file
+from figspec.data.table import Table
 from figspec.errors import DataError, Loc, Problem
 from figspec.optional import require
 from figspec.spec.sources import ParquetSource
 
 
 def read(src: ParquetSource, folder: Path, loc: Loc, plans: tuple[Plan, Plan | None],
-         units: set[str] | None = None) -> tuple[pd.DataFrame, pd.DataFrame | None]:
+         units: set[str] | None = None) -> tuple[Table, Table | None]:
     spike_plan, trial_plan = plans
     spikes = read_table(folder / src.spikes, spike_plan, loc + ("spikes",), loc,
                         units if src.unit_name is None else None)
@@ -24,7 +25,7 @@ def read(src: ParquetSource, folder: Path, loc: Loc, plans: tuple[Plan, Plan | N
     return spikes, trials
 
 
-def read_table(path: Path, wanted: Plan, file_loc: Loc, src_loc: Loc, units: set[str] | None = None) -> pd.DataFrame:
+def read_table(path: Path, wanted: Plan, file_loc: Loc, src_loc: Loc, units: set[str] | None = None) -> Table:
     pq = require("pyarrow.parquet", "format = 'parquet'", src_loc + ("format",))
     check_file(path, file_loc)
     try:
@@ -42,10 +43,25 @@ def read_table(path: Path, wanted: Plan, file_loc: Loc, src_loc: Loc, units: set
         typed = [int(u) if schema.field(column).type.__str__().startswith(("int", "uint")) and u.lstrip("-").isdigit()
                  else u for u in sorted(units)]
         filters = [(column, "in", typed)]
-    table = pq.read_table(path, columns=columns, filters=filters).to_pandas()
-    if table.empty and filters is None:
+    table = pq.read_table(path, columns=columns, filters=filters)
+    if table.num_rows == 0 and filters is None:
         raise DataError(Problem(f"{path} has no rows", file_loc))
-    out = pd.DataFrame({canonical: table[column] for canonical, (column, _) in wanted.items()})
-    if "unit" in out and not pd.api.types.is_string_dtype(out["unit"]):
-        out["unit"] = out["unit"].astype(str)      # unit names are text; keys keep their type (see assemble)
+    pa = require("pyarrow", "format = 'parquet'", src_loc + ("format",))
+    arrays = {column: _numpy(pa, table.column(column)) for column in columns}
+    out = Table({canonical: arrays[column] for canonical, (column, _) in wanted.items()})
+    if "unit" in out and out["unit"].dtype.kind in "biuf":
+        out = out.with_columns({"unit": out["unit"].astype(str)})   # unit names are text; keys keep their type
     return out
+
+
+def _numpy(pa, column) -> np.ndarray:
+    """A pyarrow column as numpy: dictionary-encoded (categorical) columns decoded, text as a
+    unicode array, nulls as NaN (numbers) or None (text, which the assembly reports)."""
+    if pa.types.is_dictionary(column.type):
+        column = column.cast(column.type.value_type)
+    if pa.types.is_integer(column.type) and column.null_count:
+        column = column.cast(pa.float64())
+    if (pa.types.is_string(column.type) or pa.types.is_large_string(column.type)) and not column.null_count:
+        coded = column.dictionary_encode().combine_chunks()       # text as codes: no Python string per row
+        return coded.dictionary.to_numpy(zero_copy_only=False).astype(str)[coded.indices.to_numpy()]
+    return column.to_numpy()

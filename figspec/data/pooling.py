@@ -4,9 +4,9 @@ population rate across two recording days. Pooled units are named ``source/unit`
 from __future__ import annotations
 
 import numpy as np
-import pandas as pd
 
 from figspec.data.recording import Recording
+from figspec.data.table import Table
 from figspec.errors import DataError, Problem
 
 
@@ -20,7 +20,7 @@ def pool(recordings: dict[str, Recording], loc: tuple) -> Recording:
     n_units = n_trials = 0
     for name, rec in recordings.items():
         units += [f"{name}/{u}" for u in rec.units]
-        trials.append(rec.trials.assign(source=name))
+        trials.append(rec.trials.with_columns({"source": name}))
         pair_unit.append(rec.pair_unit + n_units)
         pair_trial.append(rec.pair_trial + n_trials)
         counts.append(np.diff(rec.offsets))
@@ -29,7 +29,7 @@ def pool(recordings: dict[str, Recording], loc: tuple) -> Recording:
         n_units, n_trials = n_units + len(rec.units), n_trials + len(rec.trials)
     offsets = np.zeros(sum(c.size for c in counts) + 1, dtype=np.int64)
     np.cumsum(np.concatenate(counts), out=offsets[1:])
-    return Recording(units=tuple(units), trials=pd.concat(trials, ignore_index=True),
+    return Recording(units=tuple(units), trials=Table.concat(trials),
                      pair_unit=np.concatenate(pair_unit), pair_trial=np.concatenate(pair_trial), offsets=offsets,
                      ticks=np.concatenate(ticks), ticks_per_ms=ticks_per_ms.pop(), removed=tuple(removed))
 

@@ -1,7 +1,7 @@
 """Turn a ``[sources.NAME]`` spec into a :class:`Recording`.
 
 The format-specific part is one reader module per format, registered in :data:`READERS`; a
-reader returns the canonical spike and trial frames described in :mod:`figspec.data.assemble`,
+reader returns the canonical spike and trial tables described in :mod:`figspec.data.assemble`,
 and everything after that (trials, clocks, alignment, units, selection) is shared.
 """
 
@@ -10,17 +10,16 @@ from __future__ import annotations
 from pathlib import Path
 from typing import Callable
 
-import pandas as pd
-
 from figspec.data import csv_source, nwb_source, parquet_source
 from figspec.data.assemble import Layout, TrialCounts, assemble
 from figspec.data.columns import Plan, column_plan, key_paths, rename
 from figspec.data.recording import Recording
+from figspec.data.table import Table
 from figspec.errors import Loc
 from figspec.spec.selection import TrialSelection
 from figspec.spec.sources import SourceBase, TableSource
 
-Frames = tuple[pd.DataFrame, "pd.DataFrame | None"]
+Frames = tuple[Table, "Table | None"]
 
 READERS: dict[str, Callable[..., Frames]] = {
     "csv": lambda src, folder, loc, plans, units: csv_source.read(src, folder, loc, plans),
@@ -60,8 +59,8 @@ def load_source(src: SourceBase, folder: Path, loc: Loc, units: set[str] | None 
     loc : key path of the source in the spec, e.g. ``("sources", "midbrain")``.
     units : the units the spec uses (a reader may read only those).
     where_columns : trial-table columns that panels' selection conditions test.
-    frames : (spike table, trial table) as DataFrames with the file's own column names, instead
-        of reading files.
+    frames : (spike table, trial table) as DataFrames (or Tables) with the file's own column
+        names, instead of reading files.
     """
     reading = widened(src, set(where_columns))
     planned = plans(reading, loc)
@@ -71,6 +70,6 @@ def load_source(src: SourceBase, folder: Path, loc: Loc, units: set[str] | None 
     else:
         spikes, trials = READERS[src.format](reading, folder, loc, planned, units)
     if getattr(src, "unit_name", None) is not None:
-        spikes["unit"] = src.unit_name
+        spikes = spikes.with_columns({"unit": src.unit_name})
     where = " and ".join(str(folder / path) for path in src.files().values()) if frames is None else "the data frames"
     return assemble(spikes, trials, layout(src, where, key_paths(src, loc, planned), loc))

@@ -11,7 +11,8 @@ from __future__ import annotations
 from dataclasses import dataclass, replace
 
 import numpy as np
-import pandas as pd
+
+from figspec.data.table import Table
 
 
 @dataclass(frozen=True, eq=False)
@@ -21,8 +22,8 @@ class Recording:
     Attributes
     ----------
     units : unit names, sorted.
-    trials : one row per presented trial, in presentation order, with columns ``trial`` (the
-        trial key as the data gives it; several key columns are joined by "/"), ``level``
+    trials : a :class:`Table`, one row per presented trial, in presentation order, with columns
+        ``trial`` (the trial key as the data gives it; several key columns are joined by "/"), ``level``
         (float), ``stim_start_ms`` and ``stim_stop_ms`` (stimulus onset and offset relative to
         the alignment event, ms; the offset NaN when unknown), ``extent_lo_ms`` and
         ``extent_hi_ms`` (what was recorded of the trial around the alignment event, ms; -inf
@@ -40,7 +41,7 @@ class Recording:
     """
 
     units: tuple[str, ...]
-    trials: pd.DataFrame
+    trials: Table
     pair_unit: np.ndarray
     pair_trial: np.ndarray
     offsets: np.ndarray
@@ -64,7 +65,7 @@ class Recording:
     @property
     def levels(self) -> np.ndarray:
         """All levels presented, sorted numerically."""
-        return np.unique(self.trials["level"].to_numpy(dtype=float))
+        return np.unique(self.trials["level"].astype(float))
 
     def spike_pair(self) -> np.ndarray:
         """For every spike, the index of its (unit, trial) pair."""
@@ -72,7 +73,7 @@ class Recording:
 
     def pair_level(self) -> np.ndarray:
         """For every pair, its trial's level."""
-        return self.trials["level"].to_numpy(dtype=float)[self.pair_trial]
+        return self.trials["level"].astype(float)[self.pair_trial]
 
     def to_ticks(self, ms: float | np.ndarray) -> np.ndarray:
         """Times in ms as whole ticks (windows and bin edges are whole ticks by construction)."""
@@ -88,7 +89,7 @@ class Recording:
         spike_keep = np.repeat(pair_keep, np.diff(self.offsets))
         offsets = np.zeros(counts.size + 1, dtype=np.int64)
         np.cumsum(counts, out=offsets[1:])
-        return Recording(units=self.units, trials=self.trials[keep].reset_index(drop=True),
+        return Recording(units=self.units, trials=self.trials.take(keep),
                          pair_unit=self.pair_unit[pair_keep], pair_trial=new_index[self.pair_trial[pair_keep]],
                          offsets=offsets, ticks=self.ticks[spike_keep], ticks_per_ms=self.ticks_per_ms,
                          removed=self.removed + removed)

@@ -8,8 +8,9 @@ from __future__ import annotations
 import warnings
 from dataclasses import dataclass
 
-import pandas as pd
+import numpy as np
 
+from figspec.data.table import Table, first_of_each, row_codes
 from figspec.errors import DataError, FigspecWarning, Loc, Problem
 
 
@@ -21,28 +22,32 @@ class TrialCounts:
     loc: Loc
 
 
-def trials_from_spikes(spikes: pd.DataFrame, keys: list[str], counts: TrialCounts, where: str) -> pd.DataFrame:
+def trials_from_spikes(spikes: Table, keys: list[str], counts: TrialCounts, where: str) -> Table:
     """The trial table (``keys`` and ``level``) of the trials seen in ``spikes``, plus the empty
     trials ``counts`` declares."""
-    if (spikes.groupby(keys)["level"].nunique() > 1).any():
+    key_codes, _ = row_codes([spikes[k] for k in keys])
+    with_level, _ = row_codes([key_codes, spikes["level"]])
+    if np.unique(with_level).size > np.unique(key_codes).size:
         raise DataError(Problem("a trial has more than one level in the spike table", counts.loc, where))
-    seen = spikes[[*keys, "level"]].drop_duplicates(keys).sort_values(["level", *keys], kind="stable")
+    seen = spikes.select([*keys, "level"]).take(np.flatnonzero(first_of_each(key_codes)))
+    seen = seen.take(np.lexsort([seen[k] for k in reversed(keys)] + [seen["level"]]))
     if counts.per_level is None:
         warnings.warn(
             f"{where}: no trial table and no trials_per_level: trials are inferred from the spikes, "
             "so trials without any spike are missing and rates are too high. "
             "Give a trial table or trials_per_level.", FigspecWarning, stacklevel=3)
-        return seen.reset_index(drop=True)
-    declared = _declared_counts(counts, seen["level"].unique())
-    frames = [seen.astype({k: str for k in keys})]
+        return seen
+    declared = _declared_counts(counts, np.unique(seen["level"]))
+    tables = [Table({**{k: seen[k].astype(str) for k in keys}, "level": seen["level"]})]
     for level, n in declared.items():
-        found = int((seen["level"] == level).sum())
+        found = int(np.count_nonzero(seen["level"] == level))
         if found > n:
             raise DataError(Problem(f"level {level:g} has spikes in {found} trials, more than the {n} declared",
                                     counts.loc))
-        empty = pd.DataFrame({k: [f"empty-{level:g}-{i + 1}" for i in range(n - found)] for k in keys})
-        frames.append(empty.assign(level=float(level)))
-    return pd.concat(frames, ignore_index=True).sort_values("level", kind="stable").reset_index(drop=True)
+        names = np.char.add(f"empty-{level:g}-", (np.arange(n - found) + 1).astype(str))
+        tables.append(Table({**{k: names for k in keys}, "level": np.full(n - found, float(level))}))
+    table = Table.concat(tables)
+    return table.take(np.argsort(table["level"], kind="stable"))
 
 
 def _declared_counts(counts: TrialCounts, seen_levels) -> dict[float, int]:

@@ -11,13 +11,15 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any, Callable
 
 import numpy as np
-import pandas as pd
 
 from figspec.draw.context import DrawContext, Labels, typeset_math
 from figspec.draw.scales import Limits, apply_scales, apply_ticks, shared_scales
 from figspec.draw.shading import level_appearance, mark_stimulus, stimulus_key
+from figspec.optional import deferred
 from figspec.spec.fields import math_pieces
 from figspec.spec.models import FigureFile
+
+pd = deferred("pandas")          # imported on first use: checking a spec needs no pandas
 
 if TYPE_CHECKING:
     from matplotlib.figure import Figure

@@ -6,13 +6,15 @@ from __future__ import annotations
 from typing import TYPE_CHECKING
 
 import numpy as np
-import pandas as pd
 
 from figspec.draw.colours import category_gid, unit_colours
 from figspec.draw.context import DrawContext, Labels
 from figspec.draw.level_axis import draw_fit, level_limits, set_level_scale, unit_offsets, versus_title
+from figspec.optional import deferred
 from figspec.spec.models import LevelSpec
 from figspec.spec.panels import LatencyPanel
+
+pd = deferred("pandas")          # imported on first use: checking a spec needs no pandas
 
 if TYPE_CHECKING:
     from matplotlib.axes import Axes

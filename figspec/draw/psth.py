@@ -6,12 +6,14 @@ from __future__ import annotations
 from typing import TYPE_CHECKING
 
 import numpy as np
-import pandas as pd
 
 from figspec.draw.colours import category_gid, unit_colours, visible_range
 from figspec.draw.context import DrawContext, Labels, group_key
+from figspec.optional import deferred
 from figspec.spec.models import LevelSpec
 from figspec.spec.panels import PsthPanel
+
+pd = deferred("pandas")          # imported on first use: checking a spec needs no pandas
 
 if TYPE_CHECKING:
     from matplotlib.axes import Axes

@@ -3,12 +3,14 @@
 from __future__ import annotations
 
 import numpy as np
-import pandas as pd
 
 from figspec.draw.context import DrawContext, Labels, group_key
 from figspec.draw.psth import TIME_LABEL
+from figspec.optional import deferred
 from figspec.spec.models import LevelSpec
 from figspec.spec.panels import RasterPanel
+
+pd = deferred("pandas")          # imported on first use: checking a spec needs no pandas
 
 
 def draw(axes: dict, table: pd.DataFrame, panel: RasterPanel, ctx: DrawContext) -> None:

@@ -6,10 +6,12 @@ from __future__ import annotations
 from typing import TYPE_CHECKING
 
 import numpy as np
-import pandas as pd
 
+from figspec.optional import deferred
 from figspec.spec.models import StimulusSpec
 from figspec.spec.style import Style
+
+pd = deferred("pandas")          # imported on first use: checking a spec needs no pandas
 
 if TYPE_CHECKING:
     from matplotlib.axes import Axes

@@ -8,10 +8,12 @@ import re
 from pathlib import Path
 from typing import TYPE_CHECKING, Iterable
 
-import pandas as pd
 
 from figspec.draw.context import missing_glyphs, styled
+from figspec.optional import deferred
 from figspec.spec.style import Style
+
+pd = deferred("pandas")          # imported on first use: checking a spec needs no pandas
 
 if TYPE_CHECKING:
     from matplotlib.figure import Figure

@@ -7,10 +7,12 @@ import hashlib
 from pathlib import Path
 from typing import Any, Iterable
 
-import pandas as pd
 
 from figspec import __version__
+from figspec.optional import deferred
 from figspec.spec.style import BUILTIN_STYLES
+
+pd = deferred("pandas")          # imported on first use: checking a spec needs no pandas
 
 
 def input_files(files: Iterable[tuple[str, Path]]) -> list[dict]:

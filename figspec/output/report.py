@@ -9,9 +9,11 @@ import json
 from pathlib import Path
 from typing import Any, Iterable
 
-import pandas as pd
 
 from figspec.compute.describe import STAT_COLUMNS
+from figspec.optional import deferred
+
+pd = deferred("pandas")          # imported on first use: checking a spec needs no pandas
 
 
 def sha256(data: bytes) -> str:

@@ -5,12 +5,14 @@ from __future__ import annotations
 
 from dataclasses import dataclass, replace
 
-import pandas as pd
 
 from figspec.compute.stimulus import stimulus_table
 from figspec.errors import UserError
+from figspec.optional import deferred
 from figspec.registry import kind_of
 from figspec.steps.resolve import Resolved
+
+pd = deferred("pandas")          # imported on first use: checking a spec needs no pandas
 
 
 @dataclass(frozen=True)

@@ -257,9 +257,9 @@ def extent_problems(panel: PanelBase, rec: Recording) -> list[Problem]:
     unit_index = [rec.units.index(u) for u in panel.unit_names() if u in rec.units]
     shown = np.unique(rec.pair_trial[np.isin(rec.pair_unit, unit_index)])
     if panel.levels is not None:
-        shown = shown[np.isin(rec.trials["level"].to_numpy(dtype=float)[shown], panel.levels)]
-    lo = rec.trials["extent_lo_ms"].to_numpy(dtype=float)[shown]
-    hi = rec.trials["extent_hi_ms"].to_numpy(dtype=float)[shown]
+        shown = shown[np.isin(rec.trials["level"][shown], panel.levels)]
+    lo = rec.trials["extent_lo_ms"][shown]
+    hi = rec.trials["extent_hi_ms"][shown]
     problems = []
     for key, (start, stop) in panel.windows().items():
         short = (lo > start) | (hi < stop)

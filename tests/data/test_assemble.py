@@ -72,9 +72,9 @@ def _no_trial_table(per_level):
 
 def test_declared_trials_per_level_add_the_empty_trials():
     rec = _no_trial_table(5)
-    assert rec.trials.groupby("level").size().to_dict() == {0.0: 5, 20.0: 5}
+    assert rec.trials.to_frame().groupby("level").size().to_dict() == {0.0: 5, 20.0: 5}
     rec = _no_trial_table({"0": 2, "20": 4, "40": 3})
-    assert rec.trials.groupby("level").size().to_dict() == {0.0: 2, 20.0: 4, 40.0: 3}
+    assert rec.trials.to_frame().groupby("level").size().to_dict() == {0.0: 2, 20.0: 4, 40.0: 3}
 
 
 def test_more_trials_with_spikes_than_declared_is_an_error():

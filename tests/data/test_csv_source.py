@@ -16,7 +16,7 @@ def test_demo_source_loads_every_trial():
     rec = load_source(SourceSpec.model_validate(DEMO), SPECS / "data", ("sources", "demo"))
     assert rec.units == ("u1", "u2", "u3")
     assert len(rec.trials) == 270 and rec.n_pairs == 3 * 270
-    assert rec.trials.groupby("level").size().unique().tolist() == [30]
+    assert rec.trials.to_frame().groupby("level").size().unique().tolist() == [30]
     assert rec.trials["trial"].tolist() == list(range(1, 271))          # presentation order: by onset
 
 
