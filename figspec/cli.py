@@ -7,15 +7,22 @@ Exit codes: 0 success; 2 a bad spec or bad data (one line per problem, no traceb
 from __future__ import annotations
 
 import argparse
+import os
 import sys
 import warnings
 from pathlib import Path
 from typing import Sequence
 
-from figspec import __version__
-from figspec.errors import FigspecWarning, Problem, UserError
-from figspec.output.names import check_stems
-from figspec.spec.models import ALL_FORMATS
+# One BLAS thread per process, set before numpy is first imported: figspec's arrays are
+# elementwise work, its few matrix solves are tiny, and `render --jobs N` runs N processes;
+# OpenBLAS's own threads would only spin (about 0.1 s of CPU at start-up) and compete for the
+# cores. A value the user sets in the environment wins.
+os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
+
+from figspec import __version__  # noqa: E402  (after the setting above)
+from figspec.errors import FigspecWarning, Problem, UserError  # noqa: E402
+from figspec.output.names import check_stems  # noqa: E402
+from figspec.spec.models import ALL_FORMATS  # noqa: E402
 
 EXIT_OK, EXIT_INTERNAL, EXIT_USER, EXIT_DIFFERS = 0, 1, 2, 3
 
