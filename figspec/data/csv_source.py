@@ -155,7 +155,8 @@ def _parse(path: Path, delimiter: str, usecols: list[int], names: list[str], kin
                                 "Parquet: set format)?", file_loc)) from None
     except (ValueError, OSError) as err:
         raise DataError(Problem(f"cannot read {path} as CSV: {str(err).strip().splitlines()[-1]}", file_loc)) from None
-    return {c: values.astype(str) if values.dtype == object else values for c, values in out.items()}
+    # Copies, not views of the parsed rows: a view would keep every row's Python strings alive.
+    return {c: values.astype(str) if values.dtype == object else np.array(values) for c, values in out.items()}
 
 
 def _converted(values: np.ndarray, kind: str) -> np.ndarray:
