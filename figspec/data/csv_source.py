@@ -62,7 +62,8 @@ def ragged_row(path: Path, delimiter: str, n_fields: int, file_loc: Loc = ()) ->
     breaks = np.flatnonzero(raw == ord("\n"))
     ends = np.append(breaks, raw.size) if raw.size and raw[-1] != ord("\n") else breaks
     starts = np.concatenate([[0], ends[:-1] + 1])
-    counts = np.diff(np.concatenate([[0], np.cumsum(raw == ord(delimiter))[ends - 1]])) if ends.size else ends
+    # each delimiter's line: the first line end at or after it (a bincount, not a cumulative sum over every byte)
+    counts = np.bincount(np.searchsorted(ends, np.flatnonzero(raw == ord(delimiter))), minlength=ends.size)[:ends.size]
     blank = (ends - starts) <= np.where((ends - starts > 0) & (raw[np.maximum(ends - 1, 0)] == ord("\r")), 1, 0)
     bad = np.flatnonzero((counts + 1 != n_fields) & ~blank)
     return (int(bad[0]) + 1, int(counts[bad[0]]) + 1) if bad.size else None

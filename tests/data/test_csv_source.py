@@ -43,3 +43,19 @@ def test_one_unit_file_without_unit_column(tmp_path):
     rec = load_source(spec, tmp_path, ("sources", "one"))
     assert rec.units == ("cell7",)
     assert rec.n_pairs == 3 and rec.times_s.tolist() == [0.0125, 0.03]
+
+
+@pytest.mark.parametrize("text", ["a,b\n1,2\n3\n", "a,b\n1,2\n\n3,4", "a,b\r\n1,2\r\n3,4,5\r\n", "a,b\n1,2\n3,4\n",
+                                  "a,b\n1,2\n3,4,", "a,b\n,\n1,2,3,4\n"])
+def test_ragged_row_agrees_with_the_csv_module(tmp_path, text):
+    """The numpy count of fields per line against Python's csv module (no quotes here, so a
+    line is a row), blank lines skipped by both."""
+    import csv
+
+    from figspec.data.csv_source import ragged_row
+
+    path = tmp_path / "r.csv"
+    path.write_bytes(text.encode())
+    rows = list(csv.reader(text.splitlines()))
+    expected = next(((i, len(r)) for i, r in enumerate(rows, start=1) if r and len(r) != len(rows[0])), None)
+    assert ragged_row(path, ",", 2) == expected
