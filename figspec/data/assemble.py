@@ -360,7 +360,7 @@ def pair_of_spikes(spikes: Table, spike_unit: np.ndarray, trials: Table, keys: l
     size = max(int(pair_unit.max(initial=0)) + 1, 1) * int(np.prod([max(u.size, 1) for u, _ in coded], dtype=float))
     if size < 2 ** 62:                              # in place: a spike costs a few bytes of temporaries
         spike_code, pair_code = spike_unit.astype(np.int64), pair_unit.astype(np.int64)
-        lost = spike_code < 0
+        lost, found = spike_code < 0, None
         for k, (uniques, trial_code) in zip(keys, coded):
             found = lookup(uniques, spikes[k])
             lost |= found < 0
