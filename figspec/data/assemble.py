@@ -28,8 +28,8 @@ import numpy as np
 from figspec.data.by_time import assign_by_time
 from figspec.data.keep import select_trials, shown
 from figspec.data.recording import Recording
-from figspec.data.table import (Table, factorize, first_of_each, index_in, is_missing, lookup, missing, numbers, row_codes,
-                                text)
+from figspec.data.table import (Table, count_missing, factorize, first_of_each, index_in, is_missing, lookup, missing,
+                                numbers, row_codes, text)
 from figspec.data.trials_from_spikes import TrialCounts, trials_from_spikes
 from figspec.errors import DataError, FigspecWarning, Loc, Problem
 from figspec.spec.selection import TrialSelection
@@ -107,7 +107,7 @@ def check_keys_present(spikes: Table, trials: Table, keys: list[str], layout: La
     for name, table, prefix in (("spike table", spikes, "spikes:"), ("trial table", trials, "")):
         for key in keys:
             if key in table and table[key].dtype.kind not in "iub":
-                empty = int(np.count_nonzero(missing(table[key])))
+                empty = count_missing(table[key])
                 if empty:
                     raise DataError(Problem(f"the trial key is empty in {empty} rows of the {name} of {layout.where}",
                                             layout.locs.get(prefix + key, layout.locs.get("key0", ())), "an empty field"))

@@ -223,6 +223,17 @@ def missing(values: np.ndarray) -> np.ndarray:
     return np.zeros(values.size, dtype=bool)
 
 
+def count_missing(values: np.ndarray) -> int:
+    """How many of ``values`` are empty fields; text is tested once per distinct value (a
+    stripped copy of every row would cost more than the coding)."""
+    values = np.asarray(values)
+    if values.dtype.kind in "US":
+        distinct, codes = factorize(values)
+        empty = np.flatnonzero(missing(distinct))
+        return int(np.count_nonzero(np.isin(codes, empty))) if empty.size else 0
+    return int(np.count_nonzero(missing(values)))
+
+
 def index_in(names, values: np.ndarray) -> np.ndarray:
     """For each of ``values``, its position in the list ``names`` (-1 when not there)."""
     names = np.asarray(list(names))

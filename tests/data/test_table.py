@@ -8,7 +8,7 @@ import pandas as pd
 import pytest
 
 from figspec.data.csv_source import read_table
-from figspec.data.table import Table, factorize, first_of_each, index_in, lookup, missing, numbers, row_codes
+from figspec.data.table import Table, count_missing, factorize, first_of_each, index_in, lookup, missing, numbers, row_codes
 from figspec.errors import DataError
 
 
@@ -64,6 +64,7 @@ def test_numbers_and_missing_fields():
                           equal_nan=True)
     assert missing(np.array(["a", " ", ""])).tolist() == [False, True, True]
     assert missing(np.array(["a", None, np.nan], dtype=object)).tolist() == [False, True, True]
+    assert count_missing(np.array(["a", " ", "", "a"])) == 2 and count_missing(np.array([1.0, np.nan])) == 1
     assert index_in(["u2", "u10", "u1"], np.array(["u1", "u2", "x"])).tolist() == [2, 0, -1]
 
 
