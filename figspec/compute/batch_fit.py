@@ -24,13 +24,18 @@ def jacobian(model: str, scale: str, level: np.ndarray, p: np.ndarray) -> np.nda
         if scale in DB_DIVISOR:
             d = DB_DIVISOR[scale]
             u = 10.0 ** (n * (mid - lv) / d)
-            du_dmid, du_dn = u * LN10 * n / d, u * LN10 * (mid - lv) / d
-        else:
-            x = np.maximum(lv, 1e-300)
-            u = (mid / x) ** n
-            du_dmid, du_dn = u * n / mid, u * np.log(mid / x)
-        g = 1.0 / (1.0 + u)
-        return np.stack([np.ones_like(u), g, -rmax * g * g * du_dmid, -rmax * g * g * du_dn], axis=-1)
+            g = 1.0 / (1.0 + u)
+            slope = g * (1.0 - g)                 # = g^2 u, finite where u overflows
+            return np.stack([np.ones_like(u), g, -rmax * slope * LN10 * n / d, -rmax * slope * LN10 * (mid - lv) / d],
+                            axis=-1)
+        # x^n / (x^n + x50^n) = expit(-n log(x50 / x)); at x = 0 it is 0 and so are both derivatives
+        # (x^n log x -> 0), which the form u = (x50 / x)^n turns into inf * 0 = NaN
+        positive = lv > 0
+        log_ratio = np.log(mid) - np.log(np.where(positive, lv, 1.0))
+        g = np.where(positive, 0.5 * (1.0 - np.tanh(0.5 * n * log_ratio)), 0.0)      # expit(-n log(x50 / x))
+        slope = g * (1.0 - g)
+        d_n = -rmax * slope * np.where(positive, log_ratio, 0.0)
+        return np.stack([np.ones_like(g), g, -rmax * slope * n / mid, d_n], axis=-1)
     t0, k, beta = (p[:, i:i + 1] for i in range(3))
     x = to_linear(lv, scale)
     power = x ** (-beta)
@@ -63,6 +68,7 @@ def refit_all(f, model: str, scale: str, level: np.ndarray, y: np.ndarray, sigma
     p = np.tile(np.clip(start, lower, upper), (samples, 1))
     damping = np.full(samples, 1e-3)
     done = np.zeros(samples, dtype=bool)
+    converged = np.zeros(samples, dtype=bool)
 
     def cost(q):
         with np.errstate(all="ignore"):
@@ -86,9 +92,29 @@ def refit_all(f, model: str, scale: str, level: np.ndarray, y: np.ndarray, sigma
             p = np.where(better[:, None], trial, p)
             r, c = np.where(better[:, None], r_new, r), np.where(better, c_new, c)
             damping = np.where(better, np.maximum(damping / 3.0, 1e-12), np.minimum(damping * 4.0, 1e12))
+            converged |= small
             done |= small | (damping >= 1e12)
             if done.all():
                 break
-    failed = ~np.isfinite(c) | ~np.all(np.isfinite(p), axis=1) | ~done
+        jac = jacobian(model, scale, level, p) * (w[..., None] if sigma is not None else 1.0)
+    # a sample whose damping ran out without converging failed unless it stopped at a stationary
+    # point (a NaN Jacobian never is): counted, never taken as a refit that returned the start
+    stalled = done & ~converged & ~stationary(jac, r, p, lower, upper)
+    failed = ~np.isfinite(c) | ~np.all(np.isfinite(p), axis=1) | ~done | stalled | ~np.all(np.isfinite(jac), axis=(1, 2))
     p[failed] = np.nan
     return p
+
+
+def stationary(jac: np.ndarray, r: np.ndarray, p: np.ndarray, lower: np.ndarray, upper: np.ndarray,
+               cosine: float = 1e-3) -> np.ndarray:
+    """Whether each sample sits at a (bounded) stationary point of its cost: every component of
+    the gradient J^T r that does not push against an active bound has a cosine between its
+    Jacobian column and the residuals below ``cosine`` (MINPACK's gtol criterion; More, Garbow
+    & Hillstrom 1980, User Guide for MINPACK-1, ANL-80-74)."""
+    with np.errstate(all="ignore"):
+        grad = np.einsum("smi,sm->si", jac, r)
+        norm = np.sqrt(np.einsum("smi,smi->si", jac, jac)) * np.sqrt(np.sum(r * r, axis=1))[:, None]
+        blocked = ((p <= lower) & (grad > 0)) | ((p >= upper) & (grad < 0))   # descent would leave the bounds
+        free = np.where(blocked, 0.0, np.abs(grad))
+        ok = (free <= cosine * norm) | (norm == 0)
+    return np.all(ok & np.isfinite(grad), axis=1)

@@ -124,10 +124,23 @@ def fit_unit(model: str, data: UnitPoints, scale: str, confidence: float, resamp
         refits, failed = bootstrap(model, data, estimate, scale, resamples, seed, unit)
         extra = ()
     low, high = INTERVALS[model](refits, estimate, confidence) if len(refits) else (empty, empty)
-    reasons = judge(model, names, estimate, low, high, bounds, data.levels, goodness, failed)
+    low, high, collapsed = drop_collapsed(names, estimate, low, high)
+    reasons = judge(model, names, estimate, low, high, bounds, data.levels, goodness, failed) + collapsed
     status = "poorly constrained" if reasons else "ok"
     return FitResult(model, names, estimate, low, high, status, reasons + extra, goodness, sigma is not None,
                      bounds), refits
+
+
+def drop_collapsed(names, estimate, low, high) -> tuple[np.ndarray, np.ndarray, tuple[str, ...]]:
+    """Intervals of zero width (every successful refit returned the estimate) are no intervals:
+    NaN, with the reason, which makes the fit poorly constrained."""
+    width = np.asarray(high, float) - np.asarray(low, float)
+    flat = np.isfinite(width) & (width <= 1e-9 * np.maximum(np.abs(estimate), 1e-12))
+    if not flat.any():
+        return low, high, ()
+    low, high = np.where(flat, np.nan, low), np.where(flat, np.nan, high)
+    gone = ", ".join(n for n, f in zip(names, flat) if f)
+    return low, high, (f"every refit returned the estimate of {gone}: no interval",)
 
 
 def curve_grid(levels: np.ndarray, axis: str) -> np.ndarray:
@@ -154,10 +167,16 @@ def fit_tables(by_unit: dict[str, UnitPoints], y: str, model: str, levels: Level
         note = f"{result.status}" + (f": {result.message}" if result.message else "")
         params.append([unit, model, "status", np.nan, np.nan, np.nan, "", note])
         params.append([unit, model, "weighting", np.nan, np.nan, np.nan, "", weighting if result.weighted else "unweighted"])
-        interval = f"{panel.confidence:.0%} {INTERVAL_NAMES[model]} interval over trials ({len(refits)} refits)"
+        interval = (f"{panel.confidence:.0%} {INTERVAL_NAMES[model]} interval over trials "
+                    f"({len(refits)} of {panel.fit_resamples} refits succeeded)")
+        if data.values is not None and result.drawn:
+            params.append([unit, model, "refits_succeeded", float(len(refits)), np.nan, np.nan, "",
+                           f"of {panel.fit_resamples} bootstrap refits; "
+                           f"{panel.fit_resamples - len(refits)} failed and are left out of the intervals"])
         for i, name in enumerate(result.names):
+            note = interval if np.isfinite(result.ci_low[i]) else ("no interval" if len(refits) else "")
             params.append([unit, model, name, result.estimate[i], result.ci_low[i], result.ci_high[i], units_of[name],
-                           interval if len(refits) else ""])
+                           note])
         params += [[unit, model, key, value, np.nan, np.nan, "", ""] for key, value in result.goodness.items()]
         if model == "naka_rushton" and result.drawn:
             params += _derived_rows(unit, result, refits, scale, levels.unit, panel.confidence)
