@@ -12,7 +12,7 @@ import numpy as np
 from figspec.compute import level_checks
 from figspec.compute.describe import About, count_text, unit_text
 from figspec.compute.fit_tables import UnitPoints, empty_params, fit_rows, fit_sentence, fit_tables, linear_positive
-from figspec.compute.resampling import generator, key_order
+from figspec.compute.resampling import generator, presentation_order
 from figspec.compute.selection import select, spanning
 from figspec.compute.stats import bootstrap_ci, holm, signed_rank_p
 from figspec.compute.trial_counts import counts_in, first_spikes, level_bin_counts
@@ -33,13 +33,13 @@ def _selection(rec: Recording, unit: str, panel: LatencyPanel):
 
 
 def first_spike_times(rec: Recording, unit: str, panel: LatencyPanel) -> dict[float, np.ndarray]:
-    """Each level's first-spike time (ms; NaN without a spike) of every trial, in key order."""
+    """Each level's first-spike time (ms; NaN without a spike) of every trial, in presentation order."""
     sel = _selection(rec, unit, panel)
     first = first_spikes(sel, panel.response_ms)
     out = {}
     for i, lv in enumerate(sel.levels):
         at = np.flatnonzero(sel.trial_level == i)
-        out[float(lv)] = first[at[key_order(sel.trials["trial"][at])]]
+        out[float(lv)] = first[at[presentation_order(sel.trials["sequence"][at])]]
     return out
 
 

@@ -8,7 +8,7 @@ import numpy as np
 from figspec.compute import level_checks
 from figspec.compute.describe import About, count_text, unit_text
 from figspec.compute.fit_tables import UnitPoints, empty_params, fit_rows, fit_sentence, fit_tables
-from figspec.compute.resampling import generator, key_order
+from figspec.compute.resampling import generator, presentation_order
 from figspec.compute.selection import select, spanning
 from figspec.compute.stats import ZERO_TEXT, bootstrap_ci, holm, sem, signed_rank_p
 from figspec.compute.trial_counts import counts_in
@@ -23,10 +23,10 @@ check = level_checks.check
 
 
 def per_trial_responses(rec: Recording, unit: str, panel: LevelResponsePanel):
-    """(levels, evoked counts, baseline counts) of every trial presented, trials in key order
-    within each level (so resampling does not depend on the order of rows in the data)."""
+    """(levels, evoked counts, baseline counts) of every trial presented, trials in presentation
+    order within each level (so resampling depends neither on the order of rows nor on key spelling)."""
     sel = select(rec, unit, spanning(panel.response_ms, panel.baseline_ms), panel.levels)
-    order = np.lexsort((key_order(sel.trials["trial"]).argsort(), sel.trial_level))
+    order = np.lexsort((presentation_order(sel.trials["sequence"]).argsort(), sel.trial_level))
     return (sel.trials["level"][order], counts_in(sel, panel.response_ms)[order],
             counts_in(sel, panel.baseline_ms)[order])
 

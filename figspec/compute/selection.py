@@ -23,7 +23,8 @@ class Selection:
     ----------
     trials : a :class:`Table`, one row per presented trial: ``pair`` (index into the recording's pairs),
         ``trial`` (id), ``level``, ``row`` (0-based position within its level, presentation
-        order). Sorted by level, then row.
+        order), ``sequence`` (the recording's presentation rank, which resampling follows).
+        Sorted by level, then row.
     levels : the distinct levels of ``trials``, ascending.
     trial_level : for each row of ``trials``, its index into ``levels``.
     n_trials : trials presented at each of ``levels``.
@@ -70,7 +71,9 @@ def select(rec: Recording, unit: str, window_ms: tuple[float, float],
     pairs, level = pairs[order], level[order]
     values, first, inverse, counts = np.unique(level, return_index=True, return_inverse=True, return_counts=True)
     row = np.arange(pairs.size) - np.repeat(first, counts)
-    trials = Table({"pair": pairs, "trial": rec.trials["trial"][rec.pair_trial[pairs]], "level": level, "row": row})
+    trial_rows = rec.pair_trial[pairs]
+    trials = Table({"pair": pairs, "trial": rec.trials["trial"][trial_rows], "level": level, "row": row,
+                    "sequence": rec.trials["sequence"][trial_rows]})
     # A unit's pairs are contiguous (pairs are ordered by unit), so its spikes are one slice of
     # the recording: only that slice is read, never every spike of every unit.
     lo, hi = rec.to_ticks(window_ms)

@@ -163,7 +163,7 @@ def assemble(spikes, trials, layout: Layout) -> Recording:
     order = sort_order(pair, ticks)
     offsets = np.zeros(pair_unit.size + 1, dtype=np.int64)
     np.cumsum(np.bincount(pair, minlength=pair_unit.size), out=offsets[1:])
-    shown_cols = ["trial", "level", "stim_start_ms", "stim_stop_ms", "extent_lo_ms", "extent_hi_ms"]
+    shown_cols = ["trial", "sequence", "level", "stim_start_ms", "stim_stop_ms", "extent_lo_ms", "extent_hi_ms"]
     shown_cols += (["unit"] if per_unit else []) + [c for c in table if c.startswith("where:")]
     rec = Recording(units=tuple(units), trials=table.select(shown_cols), pair_unit=pair_unit, pair_trial=pair_trial,
                     offsets=offsets, ticks=ticks[order], ticks_per_ms=layout.ticks_per_ms)
@@ -283,6 +283,7 @@ def trial_table(trials: Table, keys: list[str], layout: Layout) -> tuple[Table, 
                                 where))
     added["extent_lo_ms"], added["extent_hi_ms"] = _extent(ticks, align, layout)
     added["trial"] = trials[keys[0]] if len(keys) == 1 else joined_keys([trials[k] for k in keys])
+    added["sequence"] = _sequence(trials, keys, layout)
     trials = trials.with_columns(added)
     _unique_trials(trials, keys, layout)
     return trials, {**ticks, "align": align}
@@ -305,6 +306,28 @@ def _presentation_order(trials: Table, ticks: dict, align: np.ndarray, layout: L
     if "unit" in trials:
         return np.lexsort((rows, trials["unit"]))
     return rows
+
+
+def _sequence(trials: Table, keys: list[str], layout: Layout) -> np.ndarray:
+    """Each trial's rank in presentation order, which resampling follows, so a bootstrap depends on
+    the trials and not on how their keys are spelled or the rows ordered: on a session clock the
+    order of the table (sorted by time); otherwise the order of the keys, numbers as numbers and
+    text in natural order ("t2" before "t10"), so keys 1, 2, ... and "t1", "t2", ... agree."""
+    if layout.clock == "session":
+        return np.arange(len(trials), dtype=np.int64)
+    columns = []
+    for key in reversed(keys):
+        values = trials[key]
+        if values.dtype.kind in "iuf":
+            columns.append(values)
+        else:
+            distinct, codes = np.unique(values.astype(str), return_inverse=True)
+            rank = np.argsort(np.argsort([natural_key(v) for v in distinct.tolist()], kind="stable"))
+            columns.append(rank[codes.reshape(-1)])
+    order = np.lexsort(columns)
+    sequence = np.empty(len(trials), dtype=np.int64)
+    sequence[order] = np.arange(len(trials))
+    return sequence
 
 
 def _extent(ticks: dict, align: np.ndarray, layout: Layout) -> tuple[np.ndarray, np.ndarray]:

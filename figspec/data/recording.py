@@ -23,7 +23,9 @@ class Recording:
     ----------
     units : unit names, sorted.
     trials : a :class:`Table`, one row per presented trial, in presentation order, with columns
-        ``trial`` (the trial key as the data gives it; several key columns are joined by "/"), ``level``
+        ``trial`` (the trial key as the data gives it; several key columns are joined by "/"),
+        ``sequence`` (rank in presentation order: by time on a session clock, else by key; what
+        resampling follows), ``level``
         (float), ``stim_start_ms`` and ``stim_stop_ms`` (stimulus onset and offset relative to
         the alignment event, ms; the offset NaN when unknown), ``extent_lo_ms`` and
         ``extent_hi_ms`` (what was recorded of the trial around the alignment event, ms; -inf
