@@ -14,7 +14,7 @@ from figspec.compute.describe import About, count_text, unit_text
 from figspec.compute.fit_tables import UnitPoints, empty_params, fit_rows, fit_sentence, fit_tables, linear_positive
 from figspec.compute.resampling import generator, presentation_order
 from figspec.compute.selection import select, spanning
-from figspec.compute.stats import bootstrap_ci, holm, signed_rank_p
+from figspec.compute.stats import CORRECTION_SHORT, CORRECTION_TEXT, ZERO_TEXT, bootstrap_ci, corrected, signed_rank_p
 from figspec.compute.trial_counts import counts_in, first_spikes, level_bin_counts
 from figspec.data.recording import Recording
 from figspec.optional import deferred
@@ -133,9 +133,10 @@ def latency_points(rec: Recording, panel: LatencyPanel, first_times: dict | None
     ci_low_ms, ci_high_ms : (first_spike) percentile bootstrap CI of the median.
     method : which estimator.
     note : why a value is missing, or a caveat.
-    p_holm : one-sided Wilcoxon signed-rank test of the response rate against the baseline rate
-        per trial, Holm-corrected across the unit's levels (as the level_response panel tests).
-    responsive : p_holm < alpha: the level drives a response, so its latency means something.
+    p_corrected : one-sided Wilcoxon signed-rank test of the response rate against the baseline
+        rate per trial, corrected across the unit's levels as ``correction`` says (as the
+        level_response panel tests).
+    responsive : p_corrected < alpha: the level drives a response, so its latency means something.
     in_fit : the level's latency enters the Pieron fit (responsive unless ``fit_levels = "all"``,
         a latency, and a level whose linear quantity is > 0).
     """
@@ -145,23 +146,26 @@ def latency_points(rec: Recording, panel: LatencyPanel, first_times: dict | None
             frame = first_spike_latency(rec, unit, panel, first_times[unit])
         else:
             frame = METHODS[panel.method](rec, unit, panel)
-        frame["p_holm"] = _response_test(rec, unit, panel)
+        frame["p_corrected"] = _response_test(rec, unit, panel)
         frames.append(frame)
     out = pd.concat(frames, ignore_index=True)
-    out["responsive"] = out["p_holm"] < panel.alpha
+    out["correction"] = CORRECTION_SHORT[panel.correction]
+    out["responsive"] = out["p_corrected"] < panel.alpha
+    out["response_ms"] = f"{panel.response_ms[0]:g} to {panel.response_ms[1]:g}"
+    out["baseline_ms"] = f"{panel.baseline_ms[0]:g} to {panel.baseline_ms[1]:g}"
     out["in_fit"] = out["latency_ms"].notna() & (out["responsive"] | (panel.fit_levels == "all"))
     return out
 
 
 def _response_test(rec: Recording, unit: str, panel: LatencyPanel) -> np.ndarray:
-    """Holm-corrected p of response rate > baseline rate per trial, per level (rates, so the
+    """Corrected p of response rate > baseline rate per trial, per level (rates, so the
     windows may differ in length)."""
     sel = _selection(rec, unit, panel)
     evoked = counts_in(sel, panel.response_ms) / ((panel.response_ms[1] - panel.response_ms[0]) * 1e-3)
     base = counts_in(sel, panel.baseline_ms) / ((panel.baseline_ms[1] - panel.baseline_ms[0]) * 1e-3)
     p = [signed_rank_p(evoked[sel.trial_level == i], base[sel.trial_level == i], panel.zero_differences)[1]
          for i in range(sel.levels.size)]
-    return holm(np.asarray(p, dtype=float))
+    return corrected(np.asarray(p, dtype=float), panel.correction)
 
 
 def compute(rec: Recording, panel: LatencyPanel, levels: LevelSpec) -> dict[str, pd.DataFrame]:
@@ -193,6 +197,10 @@ def compute(rec: Recording, panel: LatencyPanel, levels: LevelSpec) -> dict[str,
     return {"points": points, "fit": curve, "params": table}
 
 
+def _window(window: tuple[float, float]) -> str:
+    return f"{window[0]:g}–{window[1]:g} ms"
+
+
 def _joined(notes: pd.Series, text: str) -> pd.Series:
     return notes.where(notes == "", notes + "; ") .fillna("") + text
 
@@ -220,8 +228,10 @@ def legend(panel: LatencyPanel, tables: dict[str, pd.DataFrame], about: About) -
     if points["unit"].nunique() > 1:
         text += " Units are offset slightly along the level axis so every marker and error bar shows."
     left_out = points[~points["in_fit"] & points["latency_ms"].notna()] if panel.fit != "none" else points.iloc[:0]
-    text += (f" Open markers: levels without a significant response (one-sided Wilcoxon signed-rank test of "
-             f"response vs baseline rate per trial, Holm-corrected, p >= {panel.alpha:g}).")
+    text += (f" Open markers: levels without a significant response (one-sided Wilcoxon signed-rank test of the "
+             f"rate in {_window(panel.response_ms)} vs the baseline rate in {_window(panel.baseline_ms)} per trial, "
+             f"trials with equal rates {ZERO_TEXT[panel.zero_differences]}, {CORRECTION_TEXT[panel.correction]}, "
+             f"p ≥ {panel.alpha:g}).")
     if len(left_out):
         text += f" {len(left_out)} unit-levels were left out of the fit (named in the source data)."
     if panel.fit != "none":

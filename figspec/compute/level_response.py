@@ -10,7 +10,7 @@ from figspec.compute.describe import About, count_text, unit_text
 from figspec.compute.fit_tables import UnitPoints, empty_params, fit_rows, fit_sentence, fit_tables
 from figspec.compute.resampling import generator, presentation_order
 from figspec.compute.selection import select, spanning
-from figspec.compute.stats import ZERO_TEXT, bootstrap_ci, holm, sem, signed_rank_p
+from figspec.compute.stats import CORRECTION_SHORT, CORRECTION_TEXT, ZERO_TEXT, bootstrap_ci, corrected, sem, signed_rank_p
 from figspec.compute.trial_counts import counts_in
 from figspec.data.recording import Recording
 from figspec.optional import deferred
@@ -64,8 +64,9 @@ def response_points(rec: Recording, panel: LevelResponsePanel, values: dict | No
     statistic, p : one-sided Wilcoxon signed-rank test of evoked > baseline per trial (counts,
         or rates for ``spikes_per_s``; zero differences treated as ``zero_differences``
         says), empty when all differences are zero.
-    p_holm : p adjusted by Holm across the levels of the unit.
-    significant : p_holm < alpha.
+    p_corrected : p corrected across the levels of the unit (``correction``: Holm, or none).
+    correction : how.
+    significant : p_corrected < alpha.
 
     ``values`` (unit -> :func:`unit_values`) spares selecting the trials again.
     """
@@ -86,13 +87,16 @@ def response_points(rec: Recording, panel: LevelResponsePanel, values: dict | No
             unit_rows.append([unit, lv, e.size, mean, low, high, float(b.mean()), kind, stat, p])
         frame = pd.DataFrame(unit_rows, columns=["unit", "level", "n_trials", "response", "error_low",
                                                  "error_high", "baseline", "error_kind", "statistic", "p"])
-        frame["p_holm"] = holm(frame["p"].to_numpy())
-        frame["significant"] = frame["p_holm"] < panel.alpha
+        frame["p_corrected"] = corrected(frame["p"].to_numpy(), panel.correction)
+        frame["correction"] = CORRECTION_SHORT[panel.correction]
+        frame["significant"] = frame["p_corrected"] < panel.alpha
         rows.append(frame)
     out = pd.concat(rows, ignore_index=True)
     out["response_unit"] = "spikes/s" if panel.measure == "spikes_per_s" else "spikes"
-    out["test"] = (f"Wilcoxon signed-rank, one-sided, zero differences {ZERO_TEXT[panel.zero_differences]}, Holm"
-                   if panel.test == "wilcoxon" else "none")
+    out["test"] = (f"Wilcoxon signed-rank, one-sided, zero differences {ZERO_TEXT[panel.zero_differences]}, "
+                   f"{CORRECTION_SHORT[panel.correction]}" if panel.test == "wilcoxon" else "none")
+    out["response_ms"] = f"{panel.response_ms[0]:g} to {panel.response_ms[1]:g}"
+    out["baseline_ms"] = f"{panel.baseline_ms[0]:g} to {panel.baseline_ms[1]:g}"
     return out
 
 
@@ -106,7 +110,7 @@ def compute(rec: Recording, panel: LevelResponsePanel, levels: LevelSpec) -> dic
     """``points`` (see :func:`response_points`), ``fit`` (unit, level, response on a fine grid,
     status; for fits that are drawn) and ``params`` (long table: fit status with its reasons,
     weighting, parameters with bootstrap intervals, goodness of fit, derived levels, and the
-    threshold by test: the lowest level whose Holm-corrected test is significant)."""
+    threshold by test: the lowest level whose corrected test is significant)."""
     values = {unit: unit_values(rec, panel, unit) for unit in panel.unit_names()}
     points = response_points(rec, panel, values)
     value_unit = str(points["response_unit"].iloc[0])
@@ -125,20 +129,21 @@ def compute(rec: Recording, panel: LevelResponsePanel, levels: LevelSpec) -> dic
             sig = rows.loc[rows["significant"], "level"]
             params.append([unit, "test", "threshold_by_test", float(sig.min()) if len(sig) else np.nan,
                            np.nan, np.nan, levels.unit,
-                           "lowest level significant after Holm" if len(sig) else "no level significant"])
+                           f"lowest level significant ({CORRECTION_SHORT[panel.correction]})" if len(sig)
+                           else "no level significant"])
     table = pd.DataFrame(params, columns=empty_params().columns) if params else empty_params()
     return {"points": points, "fit": curve, "params": table}
 
 
 def statistics(panel: LevelResponsePanel, tables: dict[str, pd.DataFrame]) -> list[list]:
-    """Trials, per-level tests (statistic, p, Holm-adjusted p) and fit parameters."""
+    """Trials, per-level tests (statistic, p, corrected p) and fit parameters."""
     rows = []
     for r in tables["points"].itertuples(index=False):
         rows.append(["trials", panel.name, r.unit, r.level, "n_trials", int(r.n_trials), None, None, ""])
         if pd.notna(r.p):
             note = f"{r.test}; significant={bool(r.significant)}"
             rows += [["test", panel.name, r.unit, r.level, name, value, None, None, note]
-                     for name, value in (("statistic", r.statistic), ("p", r.p), ("p_holm", r.p_holm))]
+                     for name, value in (("statistic", r.statistic), ("p", r.p), ("p_corrected", r.p_corrected))]
     return rows + fit_rows(panel, tables["params"])
 
 
@@ -152,7 +157,7 @@ def legend(panel: LevelResponsePanel, tables: dict[str, pd.DataFrame], about: Ab
         compared = "rates" if panel.measure == "spikes_per_s" else "counts"
         text += (f" One-sided Wilcoxon signed-rank test of evoked vs baseline {compared} per trial "
                  f"({panel.baseline_ms[0]:g}–{panel.baseline_ms[1]:g} ms) per level, trials with equal values "
-                 f"{ZERO_TEXT[panel.zero_differences]}, Holm-corrected across levels within each unit; filled "
+                 f"{ZERO_TEXT[panel.zero_differences]}, {CORRECTION_TEXT[panel.correction]}; filled "
                  f"markers: p < {panel.alpha:g}.")
     if panel.fit != "none":
         text += fit_sentence(panel.fit, tables["params"], about.level_unit, panel.confidence)

@@ -50,6 +50,15 @@ def holm(p_values: np.ndarray) -> np.ndarray:
     return out
 
 
+CORRECTION_TEXT = {"holm": "Holm-corrected across levels within each unit", "none": "not corrected for multiple levels"}
+CORRECTION_SHORT = {"holm": "Holm", "none": "uncorrected"}
+
+
+def corrected(p_values: np.ndarray, correction: str) -> np.ndarray:
+    """p-values corrected across one unit's levels as the panel says: Holm (1979), or as they are."""
+    return holm(p_values) if correction == "holm" else np.asarray(p_values, dtype=float)
+
+
 # the spec's names for how trials with equal evoked and baseline counts are treated, and
 # scipy.stats.wilcoxon's: dropped (Wilcoxon 1945), kept in the ranking (Pratt 1959), or their
 # ranks split between the signs

@@ -322,7 +322,9 @@ def _sequence(trials: Table, keys: list[str], layout: Layout) -> np.ndarray:
             columns.append(values)
         else:
             distinct, codes = np.unique(values.astype(str), return_inverse=True)
-            rank = np.argsort(np.argsort([natural_key(v) for v in distinct.tolist()], kind="stable"))
+            names = distinct.tolist()
+            rank = np.empty(len(names), dtype=np.int64)
+            rank[sorted(range(len(names)), key=lambda i: natural_key(names[i]))] = np.arange(len(names))
             columns.append(rank[codes.reshape(-1)])
     order = np.lexsort(columns)
     sequence = np.empty(len(trials), dtype=np.int64)

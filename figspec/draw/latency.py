@@ -46,7 +46,8 @@ def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LatencyPanel, ctx: 
     handles, names = ax.get_legend_handles_labels()
     if len(colours) == 1:
         handles, names = [], []
-    title = f"open: p \u2265 {panel.alpha:g} (Holm)" if (~points["responsive"]).any() else None
+    title = (f"open: p \u2265 {panel.alpha:g} ({points['correction'].iloc[0]})" if (~points["responsive"]).any()
+             else None)
     if handles or title:                      # "best": where the fewest data points are
         ax.legend(handles, names, title=title, loc="best", title_fontsize=ctx.style.font.tick_pt,
                   handletextpad=0.2, borderaxespad=0.2)

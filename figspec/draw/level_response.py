@@ -29,7 +29,7 @@ def response_label(panel: LevelResponsePanel, unit: str) -> str:
 
 def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LevelResponsePanel, ctx: DrawContext) -> None:
     """Mean response per level with its error bars, filled markers where the level's
-    Holm-corrected test is significant (open otherwise), the fitted curve, and a mark on the
+    corrected test is significant (open otherwise), the fitted curve, and a mark on the
     level axis at each unit's threshold by test."""
     points, curve, params = tables["points"], tables["fit"], tables["params"]
     colours = unit_colours(points["unit"], ctx.style)
@@ -61,7 +61,7 @@ def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LevelResponsePanel,
 
         handles.append(Line2D([], [], marker=6, color="0.3", linestyle="none"))
         names.append("threshold (test)")
-    title = "filled: p < %g (Holm)" % panel.alpha if tested else None
+    title = f"filled: p < {panel.alpha:g} ({points['correction'].iloc[0]})" if tested else None
     if not handles and title is None:
         return
     ax.legend(handles, names, title=title, loc="upper left", title_fontsize=ctx.style.font.tick_pt,

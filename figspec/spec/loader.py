@@ -7,6 +7,7 @@ import hashlib
 import json
 import types
 import typing
+import warnings
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Any, TypeVar
@@ -14,7 +15,8 @@ from typing import Any, TypeVar
 import tomli
 from pydantic import BaseModel, ValidationError
 
-from figspec.errors import Loc, Problem, SpecError, toml_text
+from figspec.errors import FigspecWarning, Loc, Problem, SpecError, toml_text
+from figspec.spec.analysis import disagreements, with_analysis
 from figspec.spec.keylines import index_key_lines, line_for
 from figspec.spec.models import FigureFile, cross_check
 
@@ -134,11 +136,13 @@ def load_spec(path: str | Path) -> LoadedSpec:
     """Load, validate and cross-check one spec file."""
     path = Path(path)
     text, data = read_toml(path)
-    model = validate(FigureFile, data, path, text)
+    model = validate(FigureFile, with_analysis(data), path, text)
     spec = LoadedSpec(path=path, text=text, model=model, key_lines=index_key_lines(text))
     problems = cross_check(model)
     if problems:
         raise spec.error(problems)
+    for note in disagreements(model.panels):
+        warnings.warn(note, FigspecWarning, stacklevel=2)
     return spec
 
 

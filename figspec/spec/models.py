@@ -13,6 +13,7 @@ from typing import Annotated, Any, Literal
 from pydantic import Field, field_validator, model_validator
 
 from figspec.errors import Problem, toml_text
+from figspec.spec.analysis import AnalysisSpec
 from figspec.spec.layout import LayoutSpec, SharedGroup, grid_problems
 from figspec.spec.fields import (MAX_PANELS, ColourMap, Fraction, Frozen, Millimetres, Name, Text,
                                   TimeMs)
@@ -136,6 +137,7 @@ class FigureFile(Frozen):
     units: UnitsSpec = UnitsSpec()
     stimulus: StimulusSpec
     layout: LayoutSpec | None = None
+    analysis: AnalysisSpec = AnalysisSpec()
     sources: dict[Name, Source] = Field(min_length=1)
     panels: list[Panel] = Field(min_length=1, max_length=MAX_PANELS)
     shared: list[SharedGroup] = Field(default_factory=list)

@@ -100,6 +100,7 @@ class SummaryPanel(PanelBase):
     confidence: Probability = 0.95
     resamples: Annotated[int, Field(ge=200, le=100_000)] = 2000
     fit_resamples: Annotated[int, Field(ge=50, le=5000)] = 200
+    correction: Literal["holm", "none"] = "holm"
     seed: Seed = 0
     y_label: Text | None = None
 

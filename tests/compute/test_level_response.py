@@ -57,7 +57,7 @@ def test_p_values_equal_scipy_wilcoxon_on_per_trial_counts(rng, zero_differences
 def test_holm_and_significance(rng):
     rec, _, _ = synthetic(rng)
     table = response_points(rec, response_panel())
-    assert (table["p_holm"] >= table["p"]).all()  # a family-wise correction never lowers a p-value
+    assert (table["p_corrected"] >= table["p"]).all()  # a family-wise correction never lowers a p-value
     assert table.iloc[-1]["significant"]        # 60 dB: 7 evoked vs 1 baseline spike per trial
     strict = response_points(rec, response_panel(alpha=1e-12))
     assert not strict["significant"].any()      # alpha is the spec's, not a constant
