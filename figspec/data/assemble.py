@@ -25,7 +25,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from figspec.data.by_time import assign_by_time
+from figspec.data.by_time import assign_by_time, check_every_unit_inside
 from figspec.data.keep import select_trials, shown
 from figspec.data.recording import Recording
 from figspec.data.table import (Table, count_missing, factorize, first_of_each, index_in, is_missing, lookup, missing,
@@ -158,7 +158,7 @@ def assemble(spikes, trials, layout: Layout) -> Recording:
     ticks = spike_t                                                     # aligned in place
     if layout.clock != "aligned":
         ticks -= times["align"][pair_trial][pair]
-    check_inside_extent(ticks, table, pair_trial, pair, layout)
+    check_inside_extent(ticks, table, pair_trial, pair, layout, pair_unit, units)
     check_durations(table, layout)
     order = sort_order(pair, ticks)
     offsets = np.zeros(pair_unit.size + 1, dtype=np.int64)
@@ -188,23 +188,29 @@ def unit_codes(values: np.ndarray, layout: Layout) -> tuple[np.ndarray, np.ndarr
 
 
 def check_inside_extent(ticks: np.ndarray, table: Table, pair_trial: np.ndarray, pair: np.ndarray, layout: Layout,
-                        chunk: int = 1 << 20) -> None:
+                        pair_unit: np.ndarray, units: list[str], chunk: int = 1 << 20) -> None:
     """Spikes far outside their own trial's recorded extent mean the time unit or the clock is
-    wrong: an error when none is inside, a warning when most are not. Counted in chunks, so the
-    check needs no full-size temporary arrays."""
+    wrong: an error when none is inside (in all, or of one unit), a warning when most are not.
+    Counted in chunks, so the check needs no full-size temporary arrays."""
     lo = table["extent_lo_ms"].astype(float) * layout.ticks_per_ms
     hi = table["extent_hi_ms"].astype(float) * layout.ticks_per_ms
     if not (np.isfinite(lo).any() or np.isfinite(hi).any()):
         return
     outside = 0
+    inside_per_unit = np.zeros(len(units), dtype=np.int64)
     for start in range(0, ticks.size, chunk):
-        t, k = ticks[start:start + chunk], pair_trial[pair[start:start + chunk]]
-        outside += int(np.count_nonzero((t < lo[k]) | (t >= hi[k])))
+        p = pair[start:start + chunk]
+        t, k = ticks[start:start + chunk], pair_trial[p]
+        out = (t < lo[k]) | (t >= hi[k])
+        outside += int(np.count_nonzero(out))
+        inside_per_unit += np.bincount(pair_unit[p[~out]], minlength=len(units))
     hint = (f"is time_unit = {layout.time_unit!r} right, and are spike and trial times on the same clock "
             f"({layout.clock!r})?")
     if ticks.size and outside == ticks.size:
         raise DataError(Problem(f"no spike falls inside its trial's recorded extent: {hint}",
                                 layout.locs.get("time", ()), layout.where))
+    check_every_unit_inside(np.bincount(pair_unit[pair], minlength=len(units)), inside_per_unit, units,
+                            "inside its trial's recorded extent", layout)
     if outside > ticks.size / 2:
         warnings.warn(f"{layout.where}: {outside} of {ticks.size} spikes fall outside their trial's recorded extent: "
                       f"{hint}", FigspecWarning, stacklevel=3)

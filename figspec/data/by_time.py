@@ -43,8 +43,23 @@ def assign_by_time(spike_t: np.ndarray, spike_unit: np.ndarray, units: list[str]
     if spike_t.size and outside == spike_t.size:
         raise DataError(Problem("no spike falls inside any trial's start and stop: is time_unit right, and are "
                                 "spikes and trials on the same clock?", layout.locs.get("time", ()), layout.where))
+    check_every_unit_inside(np.bincount(spike_unit, minlength=len(units)),
+                            np.bincount(spike_unit[inside], minlength=len(units)), units,
+                            "inside any trial's start and stop", layout)
     if outside > spike_t.size / 2:
         warnings.warn(f"{layout.where}: {outside} of {spike_t.size} spikes fall inside no trial's start and stop "
                       "(left out): is time_unit right, and are spikes and trials on the same clock?",
                       FigspecWarning, stacklevel=4)
     return pair, outside
+
+
+def check_every_unit_inside(total: np.ndarray, kept: np.ndarray, units, where_inside: str, layout) -> None:
+    """A unit with spikes of which none falls where its trials were recorded is an error naming
+    the unit and the likely cause (the time unit or the clock): its figure would be empty rows
+    and a fit through zeros. ``total`` and ``kept``: each unit's spikes, and those inside."""
+    lost = np.flatnonzero((total > 0) & (kept == 0))
+    if lost.size:
+        names = ", ".join(shown(units[i]) for i in lost[:3]) + (f" and {lost.size - 3} more" if lost.size > 3 else "")
+        raise DataError(Problem(f"no spike of unit {names} falls {where_inside} ({int(total[lost].sum())} spikes): "
+                                f"is time_unit = {layout.time_unit!r} right, and are its spikes on the same clock "
+                                f"({layout.clock!r}) as the trials?", layout.locs.get("time", ()), layout.where))

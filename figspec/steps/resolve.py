@@ -289,6 +289,13 @@ def figure_limits(model, panels: list[tuple[PanelBase, Recording]]) -> list[Prob
         problems.append(Problem(f"{fig.width_mm:g} x {fig.height_mm:g} mm at {fig.png_dpi} dpi is {pixels / 1e6:.0f} "
                                 f"million pixels; at most {MAX_PIXELS / 1e6:.0f} million (lower png_dpi or the size)",
                                 ("figure", "png_dpi"), str(fig.png_dpi)))
+    if model.stimulus.opacity_scale == "log":
+        shown = np.concatenate([np.asarray(p.levels if p.levels is not None else rec.levels, dtype=float)
+                                for p, rec in panels])
+        if shown.size and shown.min() <= 0:
+            problems.append(Problem(f"a logarithmic opacity scale needs levels > 0, but a panel shows level "
+                                    f"{shown.min():g}: use opacity_scale = 'linear', or leave that level out with "
+                                    "a panel's 'levels'", ("stimulus", "opacity_scale"), "'log'"))
     total = sum(axes_count(p, rec) for p, rec in panels)
     if total > MAX_AXES:
         problems.append(Problem(f"the panels draw {total} axes; at most {MAX_AXES} per figure (split the figure, "

@@ -86,3 +86,22 @@ def test_inferring_trials_from_spikes_warns_loudly():
     with pytest.warns(FigspecWarning, match="trials without any spike are missing"):
         rec = _no_trial_table(None)
     assert len(rec.trials) == 3
+
+
+@pytest.mark.parametrize("assign", ["by_key", "by_time"])
+def test_a_unit_whose_spikes_fall_in_no_trial_is_an_error_naming_it_and_the_likely_cause(assign):
+    # u2's times were exported in ms but the source says s: on a session clock every one of them lands
+    # hours after the last trial, while u1 is fine (so the whole-recording checks saw nothing wrong)
+    trials = pd.DataFrame({"key0": [1, 2, 3], "level": [0.0, 40.0, 80.0], "onset": [0.1, 0.6, 1.1],
+                           "start": [0.0, 0.5, 1.0], "stop": [0.5, 1.0, 1.5]})
+    spikes = pd.DataFrame({"unit": ["u1", "u1", "u2", "u2", "u2"], "key0": [1, 3, 1, 2, 3],
+                           "time": [0.12, 1.13, 120.0, 620.0, 1130.0]})
+    if assign == "by_time":
+        spikes = spikes.drop(columns="key0")
+    layout = Layout(where="spikes.csv", locs={"time": ("sources", "s", "spike_columns", "time")}, clock="session",
+                    assign=assign)
+    with pytest.raises(DataError) as err:
+        assemble(spikes, trials, layout)
+    message = str(err.value)
+    assert "no spike of unit 'u2'" in message and "(3 spikes)" in message and "time_unit = 's'" in message
+    assert "u1" not in message
