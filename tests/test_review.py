@@ -83,7 +83,7 @@ def test_statistics_summary_and_legend(two_renders):
     p = stats[(stats["section"] == "test") & (stats["quantity"] == "p_corrected")]
     assert len(p) == 27 and p["value"].between(0, 1).all()
     legend = (a / "level_summary_data" / "legend.md").read_text()
-    assert "Holm-corrected" in legend and "mean +/- SEM" in legend and "n = 30 trials per level" in legend
+    assert "Holm-corrected" in legend and "mean ± SEM" in legend and "+/-" not in legend and "n = 30 trials per level" in legend
 
 
 def test_source_data_equals_what_is_drawn(two_renders):

@@ -5,13 +5,18 @@ its legend sentence. Kinds build theirs from these pieces; the registry falls ba
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any
+from typing import Any, Callable
 
 import numpy as np
 
 from figspec.optional import deferred
 
 pd = deferred("pandas")          # imported on first use: checking a spec needs no pandas
+
+# units drawn side by side at one level: offset by one marker width each (the style's marker size)
+OFFSET_SENTENCE = ("Units are drawn side by side at each level (one marker width apart, less where two levels are "
+                   "close on the page) so coincident markers and error bars show; the source data keep the true "
+                   "levels.")
 
 STAT_COLUMNS = ["section", "panel", "unit", "level", "quantity", "value", "ci_low", "ci_high", "note"]
 
@@ -28,6 +33,8 @@ class About:
     label: str
     declared: Any
     level_unit: str
+    level_scale: str | None = None
+    unit_label: Callable[[str], str] = str
 
 
 def trial_rows(panel, tables) -> list[list]:
@@ -49,8 +56,16 @@ def count_text(values) -> str:
     return str(n[0]) if len(n) == 1 else f"{n[0]}–{n[-1]}"
 
 
-def unit_text(table: pd.DataFrame) -> str:
-    return ", ".join(str(u) for u in pd.unique(table["unit"]))
+def unit_text(table: pd.DataFrame, about: "About | None" = None) -> str:
+    """The units of a table as the figure names them: the display name, with the data's name in
+    parentheses where they differ."""
+    names = [str(u) for u in pd.unique(table["unit"])]
+    return ", ".join(shown_unit(u, about) for u in names)
+
+
+def shown_unit(unit: str, about: "About | None") -> str:
+    label = about.unit_label(unit) if about is not None else unit
+    return unit if label == unit else f"{label} ({unit})"
 
 
 def generic_legend(panel, tables, about: About) -> str:
@@ -59,5 +74,5 @@ def generic_legend(panel, tables, about: About) -> str:
     table = next((t for t in frames if "unit" in t and "n_trials" in t and len(t)), None)
     if table is None:
         return f"- *{about.label}*: {panel.kind.replace('_', ' ')}."
-    return (f"- *{about.label}*: {panel.kind.replace('_', ' ')}; units {unit_text(table)}; "
+    return (f"- *{about.label}*: {panel.kind.replace('_', ' ')}; units {unit_text(table, about)}; "
             f"n = {count_text(table['n_trials'])} trials per level.")

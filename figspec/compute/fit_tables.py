@@ -16,7 +16,8 @@ from typing import Callable
 import numpy as np
 
 from figspec.compute.batch_fit import refit_all
-from figspec.compute.decibels import to_linear
+from figspec.compute.decibels import DB_DIVISOR, to_linear
+from figspec.compute.describe import shown_unit
 from figspec.compute.fits import MODELS, FitResult, derived_naka_rushton, goodness_of_fit, judge, least_squares, setup
 from figspec.compute.resampling import generator
 from figspec.errors import FigspecWarning
@@ -216,7 +217,7 @@ def fit_rows(panel, params: pd.DataFrame) -> list[list]:
             for r in params.itertuples(index=False)]
 
 
-def fit_sentence(model: str, params: pd.DataFrame, level_unit: str, confidence: float) -> str:
+def fit_sentence(model: str, params: pd.DataFrame, about, confidence: float) -> str:
     """What the legend says of the fits: how they were weighted, how intervals were found, and
     which were drawn solid, dashed or not at all."""
     status = params[params["quantity"] == "status"].set_index("unit")["note"].str.split(":").str[0]
@@ -225,13 +226,22 @@ def fit_sentence(model: str, params: pd.DataFrame, level_unit: str, confidence: 
     if status.empty:
         return ""
     how = "; ".join(sorted(set(weighting)))
-    text = (f" Curves: {name} fits on the linear level ({level_unit}), {how}; parameter intervals: "
-            f"{confidence:.0%} {INTERVAL_NAMES[model]} over trials.")
+    text = (f" Curves: {name} fits {fitted_on(about.level_scale, about.level_unit)}, {how}; parameter intervals: "
+            f"{confidence:.0%} {INTERVAL_NAMES[model]} over trials, from the refits that succeeded.")
     for label, units in (("poorly constrained, drawn dashed", status[status == "poorly constrained"].index),
                          ("failed, not drawn", status[status == "failed"].index)):
         if len(units):
-            text += f" {name} fit {label}: {', '.join(units)} (reasons in the statistics table)."
+            text += (f" {name} fit {label}: {', '.join(shown_unit(u, about) for u in units)} (reasons in the "
+                     "statistics table).")
     return text
+
+
+def fitted_on(scale: str | None, level_unit: str) -> str:
+    """How the legend names what a fit's x was: the linear quantity behind levels in dB, or the level."""
+    unit = f" in {level_unit}" if level_unit else ""
+    if scale in DB_DIVISOR:
+        return f"on the linear quantity 10^(L/{DB_DIVISOR[scale]:g}) of the level L{unit}"
+    return f"on the level{unit}"
 
 
 def linear_positive(levels: np.ndarray, scale: str) -> np.ndarray:

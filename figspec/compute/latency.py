@@ -10,7 +10,7 @@ from __future__ import annotations
 import numpy as np
 
 from figspec.compute import level_checks
-from figspec.compute.describe import About, count_text, unit_text
+from figspec.compute.describe import OFFSET_SENTENCE, About, count_text, shown_unit, unit_text
 from figspec.compute.fit_tables import UnitPoints, empty_params, fit_rows, fit_sentence, fit_tables, linear_positive
 from figspec.compute.resampling import generator, presentation_order
 from figspec.compute.selection import select, spanning
@@ -219,14 +219,15 @@ def legend(panel: LatencyPanel, tables: dict[str, pd.DataFrame], about: About) -
     points = tables["points"]
     text = (f"- *{about.label}*: {panel.method.replace('_', '-')} latency in "
             f"{panel.response_ms[0]:g}–{panel.response_ms[1]:g} ms, n = {count_text(points['n_trials'])} trials "
-            f"per level; units {unit_text(points)}.")
+            f"per level; units {unit_text(points, about)}.")
     if panel.method == "first_spike":
         no_spike = points.groupby("unit")["n_no_spike"].sum().astype(int)
         text += (f" Points: median over trials with a spike; error bars: {panel.confidence:.0%} percentile "
                  f"bootstrap CI ({panel.resamples} resamples); trials without a spike are not counted as "
-                 f"zero latency (trials without a spike: {', '.join(f'{u} {n}' for u, n in no_spike.items())}).")
+                 f"zero latency (trials without a spike: "
+                 f"{', '.join(f'{shown_unit(u, about)} {n}' for u, n in no_spike.items())}).")
     if points["unit"].nunique() > 1:
-        text += " Units are offset slightly along the level axis so every marker and error bar shows."
+        text += f" {OFFSET_SENTENCE}"
     left_out = points[~points["in_fit"] & points["latency_ms"].notna()] if panel.fit != "none" else points.iloc[:0]
     text += (f" Open markers: levels without a significant response (one-sided Wilcoxon signed-rank test of the "
              f"rate in {_window(panel.response_ms)} vs the baseline rate in {_window(panel.baseline_ms)} per trial, "
@@ -235,5 +236,5 @@ def legend(panel: LatencyPanel, tables: dict[str, pd.DataFrame], about: About) -
     if len(left_out):
         text += f" {len(left_out)} unit-levels were left out of the fit (named in the source data)."
     if panel.fit != "none":
-        text += fit_sentence(panel.fit, tables["params"], about.level_unit, panel.confidence)
+        text += fit_sentence(panel.fit, tables["params"], about, panel.confidence)
     return text

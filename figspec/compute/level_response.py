@@ -6,7 +6,7 @@ from __future__ import annotations
 import numpy as np
 
 from figspec.compute import level_checks
-from figspec.compute.describe import About, count_text, unit_text
+from figspec.compute.describe import OFFSET_SENTENCE, About, count_text, unit_text
 from figspec.compute.fit_tables import UnitPoints, empty_params, fit_rows, fit_sentence, fit_tables
 from figspec.compute.resampling import generator, presentation_order
 from figspec.compute.selection import select, spanning
@@ -79,7 +79,7 @@ def response_points(rec: Recording, panel: LevelResponsePanel, values: dict | No
             mean = float(v.mean())
             if panel.error == "sem":
                 s = sem(v)
-                low, high, kind = mean - s, mean + s, "mean +/- SEM"
+                low, high, kind = mean - s, mean + s, "mean ± SEM"
             else:
                 low, high = bootstrap_ci(v, np.mean, panel.confidence, panel.resamples, generator(panel.seed, unit, lv))
                 kind = f"{panel.confidence:.0%} bootstrap CI of the mean"
@@ -152,13 +152,15 @@ def legend(panel: LevelResponsePanel, tables: dict[str, pd.DataFrame], about: Ab
     subtracted = ", baseline subtracted" if panel.subtract_baseline else ""
     text = (f"- *{about.label}*: response in {panel.response_ms[0]:g}–{panel.response_ms[1]:g} ms after onset "
             f"({points['response_unit'].iloc[0]}{subtracted}), {points['error_kind'].iloc[0]}, "
-            f"n = {count_text(points['n_trials'])} trials per level; units {unit_text(points)}.")
+            f"n = {count_text(points['n_trials'])} trials per level; units {unit_text(points, about)}.")
     if panel.test != "none":
         compared = "rates" if panel.measure == "spikes_per_s" else "counts"
         text += (f" One-sided Wilcoxon signed-rank test of evoked vs baseline {compared} per trial "
                  f"({panel.baseline_ms[0]:g}–{panel.baseline_ms[1]:g} ms) per level, trials with equal values "
                  f"{ZERO_TEXT[panel.zero_differences]}, {CORRECTION_TEXT[panel.correction]}; filled "
                  f"markers: p < {panel.alpha:g}.")
+    if points["unit"].nunique() > 1:
+        text += f" {OFFSET_SENTENCE}"
     if panel.fit != "none":
-        text += fit_sentence(panel.fit, tables["params"], about.level_unit, panel.confidence)
+        text += fit_sentence(panel.fit, tables["params"], about, panel.confidence)
     return text

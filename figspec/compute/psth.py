@@ -7,7 +7,7 @@ import warnings
 
 import numpy as np
 
-from figspec.compute.describe import About, count_text, trial_rows, unit_text
+from figspec.compute.describe import About, count_text, shown_unit, trial_rows, unit_text
 from figspec.compute.optimal import choose_bandwidth, choose_bin_width
 from figspec.compute.selection import Selection, select
 from figspec.compute.smoothing import causal_smooth, gaussian_smooth
@@ -201,7 +201,7 @@ def legend(panel: PsthPanel, table: pd.DataFrame, about: About) -> str:
         how = " chosen by the Shimazaki & Shinomoto 2010 cost" if declared.kernel_ms == "auto" else ""
         width = "SD" if panel.smooth == "gaussian" else "time constant"
         text += f", smoothed with a {panel.smooth} kernel ({width} {panel.kernel_ms:.3g} ms{how})"
-    units, pooled = unit_text(table), ""
+    units, pooled = unit_text(table, about), ""
     if panel.normalise != "none":
         text += (f"; each unit's rate divided by its own {panel.normalise} rate ("
                  + ("its highest bin at any level shown" if panel.normalise == "peak" else
@@ -209,6 +209,6 @@ def legend(panel: PsthPanel, table: pd.DataFrame, about: About) -> str:
     if "rate_sem" in table:
         n_units = int(table["n_units"].max())
         text += f"; line and band: mean ± SEM across {n_units} units"
-        units, pooled = ", ".join(panel.unit_names()), f" in all, over {n_units} units"
+        units, pooled = ", ".join(shown_unit(u, about) for u in panel.unit_names()), f" in all, over {n_units} units"
     return (f"- *{about.label}*: {text}; units {units}; n = {count_text(table['n_trials'])} trials per "
             f"level{pooled}; time from stimulus onset, window {panel.window_ms[0]:g} to {panel.window_ms[1]:g} ms.")

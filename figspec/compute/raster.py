@@ -148,11 +148,11 @@ def legend(panel: RasterPanel, table: pd.DataFrame, about: About) -> str:
         cell_ms = (panel.window_ms[1] - panel.window_ms[0]) / n_time
         return (f"- *{about.label}*: Spike rasters drawn as density images (too many trials for one tick "
                 f"per spike to show): grey level = spikes per cell of {cell_ms:.3g} ms x 1/{n_groups} of the "
-                f"trials (in presentation order), one scale for every level; units {unit_text(table)}; "
+                f"trials (in presentation order), one scale for every level; units {unit_text(table, about)}; "
                 f"n = {count_text(table['n_trials'])} trials per level; {window}")
     shown = ""
     if panel.trials_shown is not None:
         shown = (f" {count_text(table['n_shown'])} of {count_text(table['n_trials'])} trials per level shown, a "
                  f"random subset (seed {panel.seed});")
     return (f"- *{about.label}*: Spike rasters (one line per trial presented, one tick per spike);{shown} "
-            f"units {unit_text(table)}; n = {count_text(table['n_trials'])} trials per level; {window}")
+            f"units {unit_text(table, about)}; n = {count_text(table['n_trials'])} trials per level; {window}")

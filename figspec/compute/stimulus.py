@@ -12,7 +12,8 @@ from figspec.spec.models import StimulusSpec
 pd = deferred("pandas")          # imported on first use: checking a spec needs no pandas
 
 
-def stimulus_table(rec: Recording, unit: str, stimulus: StimulusSpec, levels=None) -> pd.DataFrame:
+def stimulus_table(rec: Recording, unit: str, stimulus: StimulusSpec, levels=None,
+                   sham: frozenset[float] = frozenset()) -> pd.DataFrame:
     """The stimulus window of each level for one unit's trials (ms from onset), optionally
     only of ``levels``.
 
@@ -26,6 +27,7 @@ def stimulus_table(rec: Recording, unit: str, stimulus: StimulusSpec, levels=Non
     start_ms, start_max_ms : earliest and latest stimulus start across the level's trials (ms
         from the alignment event; they differ when trials are aligned to another event).
     stop_min_ms, stop_max_ms : earliest and latest stimulus stop across the level's trials.
+    presented : False at the ``sham`` levels, where no stimulus was presented (drawn unshaded).
     """
     sel = select(rec, unit, (0.0, 0.0), levels)     # trials only: an empty window holds no spike
     n = sel.levels.size
@@ -42,7 +44,8 @@ def stimulus_table(rec: Recording, unit: str, stimulus: StimulusSpec, levels=Non
         stop_min = stop_max = np.full(n, float(stimulus.stop_ms))
     return pd.DataFrame({"unit": unit, "level": sel.levels, "n_trials": sel.n_trials, "start_ms": start,
                          "start_max_ms": start_max,
-                         "stop_min_ms": stop_min, "stop_max_ms": stop_max})
+                         "stop_min_ms": stop_min, "stop_max_ms": stop_max,
+                         "presented": ~np.isin(sel.levels, np.asarray(sorted(sham), dtype=float))})
 
 
 def _per_level(values: np.ndarray, level: np.ndarray, n: int, pick) -> np.ndarray:

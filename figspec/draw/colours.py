@@ -49,6 +49,18 @@ def unit_colours(units: Iterable[str], style: Style) -> dict[str, str]:
     return {u: palette[i % len(palette)] for i, u in enumerate(dict.fromkeys(units))}
 
 
+# marker shapes of the second, third ... pass through the palette, so a unit past the palette's
+# length differs from the unit that shares its colour by shape (Tufte 1983: redundant encoding)
+MARKERS = ("o", "s", "^", "D", "v", "P", "X")
+
+
+def unit_markers(units: Iterable[str], style: Style) -> dict[str, str]:
+    """The marker of each unit, in order: circles for the first pass through the palette, then
+    squares, triangles ... so every (colour, marker) pair is distinct up to 7 palette lengths."""
+    n = len(style.palette.units)
+    return {u: MARKERS[(i // n) % len(MARKERS)] for i, u in enumerate(dict.fromkeys(units))}
+
+
 def category_gid(name: str) -> str:
     return CATEGORY + str(name)
 

@@ -84,14 +84,16 @@ def compose(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> "Figu
                      for p in plans)
         shaded = [sub for sub in fig.subfigs if any(a.get_gid() == "stimulus" for ax in sub.axes for a in ax.patches)]
         # under the one panel that shows the stimulus, else under the union of those that do
+        sham = sorted({float(v) for p in plans if p.stimulus is not None
+                       for v in p.stimulus.loc[~p.stimulus["presented"], "level"]})
         stimulus_key(shaded[0] if len(shaded) == 1 else fig, appearance, spec.stimulus.label, spec.levels.label,
-                     ranges, shaded if len(shaded) > 1 else None)
+                     ranges, shaded if len(shaded) > 1 else None, sham)
     typeset_math(fig, math_pieces(spec))
     return fig
 
 
 def _appearance(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> dict:
-    levels = [float(v) for p in plans if p.stimulus is not None for v in p.stimulus["level"]]
+    levels = [float(v) for p in plans if p.stimulus is not None for v in p.stimulus.loc[p.stimulus["presented"], "level"]]
     return level_appearance(np.asarray(levels), spec.stimulus, ctx.style) if levels else {}
 
 
@@ -151,7 +153,7 @@ def _mark(plan: PanelPlan, target, spec: FigureFile, ctx: DrawContext, appearanc
     stim, mark = plan.stimulus, spec.stimulus.mark
     if isinstance(target, dict):
         repeat = plan.panel.repeat
-        for _, window in stim.iterrows():
+        for _, window in stim[stim["presented"]].iterrows():      # no mark where no stimulus was presented
             key = float(window["level"]) if repeat == "level" else str(window["unit"])
             if key in target:
                 colour, alpha = appearance[float(window["level"])]
@@ -159,6 +161,9 @@ def _mark(plan: PanelPlan, target, spec: FigureFile, ctx: DrawContext, appearanc
         return
     # one window for every level overlaid: in the faintest level's shade, so the lines over it
     # (one per level, in their own colours) stay legible; the key gives each level's shade
+    stim = stim[stim["presented"]]
+    if stim.empty:
+        return
     lowest = stim.loc[stim["level"].idxmin()]
     window = pd.Series({"start_ms": stim["start_ms"].min(), "start_max_ms": stim["start_max_ms"].max(),
                         "stop_min_ms": stim["stop_min_ms"].min(), "stop_max_ms": stim["stop_max_ms"].max()})

@@ -7,9 +7,10 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from figspec.draw.colours import category_gid, unit_colours
+from figspec.draw.colours import category_gid, unit_colours, unit_markers
 from figspec.draw.context import DrawContext, Labels
-from figspec.draw.level_axis import draw_fit, level_limits, set_level_scale, unit_offsets, versus_title
+from figspec.draw.level_axis import (draw_fit, level_limits, own_limits, set_level_scale, shifted, unit_shifts_pt,
+                                     versus_title)
 from figspec.optional import deferred
 from figspec.spec.models import LevelSpec
 from figspec.spec.panels import LatencyPanel
@@ -24,25 +25,28 @@ METHOD_LABELS = {"first_spike": "First-spike latency", "threshold": "Onset laten
 
 def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LatencyPanel, ctx: DrawContext) -> None:
     """Latency per level: filled markers where the level drives a significant response, open
-    where it does not (left out of the fit by default); units offset slightly along x."""
+    where it does not (left out of the fit by default); units side by side, one marker width apart."""
     points, curve = tables["points"], tables["fit"]
     colours = unit_colours(points["unit"], ctx.style)
-    shifts = dict(zip(colours, unit_offsets(points["level"].to_numpy(), len(colours), panel.level_axis)))
+    markers = unit_markers(points["unit"], ctx.style)
+    set_level_scale(ax, panel, points["level"].to_numpy())        # before any offset transform is made
+    shifts = dict(zip(colours, unit_shifts_pt(ax, panel, points["level"], len(colours), ctx.style.summary.marker_pt)))
     for unit, rows in points.groupby("unit", sort=False):
         c = colours[unit]
+        at = shifted(ax, ax.transData, shifts[unit])
         x, y = rows["level"].to_numpy(dtype=float), rows["latency_ms"].to_numpy(dtype=float)
-        x = x * 10 ** shifts[unit] if panel.level_axis == "log" else x + shifts[unit]
         if rows["ci_low_ms"].notna().any():
             err = np.vstack([y - rows["ci_low_ms"].to_numpy(), rows["ci_high_ms"].to_numpy() - y])
-            ax.errorbar(x, y, yerr=np.nan_to_num(err), color=c, linestyle="none", gid=f"errors:{unit}")
+            ax.errorbar(x, y, yerr=np.nan_to_num(err), color=c, linestyle="none", gid=f"errors:{unit}", transform=at)
         if panel.fit == "none":
-            ax.plot(x, y, "-", color=c, gid=f"line:{unit}")
+            ax.plot(x, y, "-", color=c, gid=f"line:{unit}", transform=at)
         responsive = rows["responsive"].to_numpy(dtype=bool)
-        ax.plot(x[responsive], y[responsive], "o", color=c, label=ctx.unit_label(unit), gid=category_gid(unit))
-        ax.plot(x[~responsive], y[~responsive], "o", color="white", markeredgecolor=c, gid=f"points_ns:{unit}")
+        ax.plot(x[responsive], y[responsive], markers[unit], color=c, label=ctx.unit_label(unit), gid=category_gid(unit),
+                transform=at, clip_on=False, in_layout=False)
+        ax.plot(x[~responsive], y[~responsive], markers[unit], color="white", markeredgecolor=c, gid=f"points_ns:{unit}",
+                transform=at, clip_on=False, in_layout=False)
         draw_fit(ax, curve[curve["unit"] == unit], "latency_ms", c, unit)
-    set_level_scale(ax, panel, points["level"].to_numpy())
-    ax.set_ylim(bottom=0)
+    own_limits(ax, limits(panel, tables))            # offset artists do not enter matplotlib's autoscaling
     handles, names = ax.get_legend_handles_labels()
     if len(colours) == 1:
         handles, names = [], []

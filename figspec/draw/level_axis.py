@@ -108,15 +108,37 @@ def draw_fit(ax: "Axes", fitted, y: str, colour, unit: str) -> None:
         ax.plot(rows["level"], rows[y], "-" if status == "ok" else "--", color=colour, gid=f"fit:{unit}:{status}")
 
 
-def unit_offsets(levels: np.ndarray, n_units: int, axis: str) -> np.ndarray:
-    """A small shift along the level axis for each of ``n_units`` (2 % of the smallest level
-    step, centred), so units' markers and error bars at one level do not hide each other; on a
-    log axis, a factor."""
+def unit_shifts_pt(ax: "Axes", panel, levels, n_units: int, marker_pt: float) -> list[float]:
+    """Each of ``n_units``' shift along the level axis, in points, centred on the level: one
+    marker width apart, so coincident markers and error bars of several units all show at print
+    size (a shift in data units would vanish on a wide level range), but never spreading over
+    more than 40 % of the closest gap between two levels on the page, so no unit's marker lands
+    nearer another level than its own. Sets the axis' level limits to measure that gap."""
+    if n_units < 2:
+        return [0.0]
     levels = np.unique(np.asarray(levels, dtype=float))
-    if n_units < 2 or levels.size < 2:
-        return np.zeros(n_units)
-    if axis == "log":
-        step = float(np.min(np.diff(np.log10(levels[levels > 0])))) if (levels > 0).sum() > 1 else 0.1
-    else:
-        step = float(np.min(np.diff(levels)))
-    return (np.arange(n_units) - (n_units - 1) / 2) * 0.04 * step
+    ax.set_xlim(*level_limits(levels, panel.level_axis))
+    step = marker_pt
+    if levels.size > 1:
+        x = np.sort(ax.transData.transform(np.column_stack([levels, np.zeros(levels.size)]))[:, 0])
+        gap_pt = float(np.min(np.diff(x))) * 72.0 / ax.figure.dpi
+        step = min(step, 0.4 * gap_pt / (n_units - 1))
+    return [float((i - (n_units - 1) / 2) * step) for i in range(n_units)]
+
+
+def own_limits(ax: "Axes", limits: dict[str, tuple[float, float]]) -> None:
+    """The panel's own data limits (its ``limits`` hook) as the axes' limits, y with a 5 % margin
+    above (and below, when it is not 0): shared scales may replace them later."""
+    ax.set_xlim(*limits["x"])
+    lo, hi = limits["y"]
+    pad = 0.05 * (hi - lo) if hi > lo else 1.0
+    ax.set_ylim(lo if lo == 0 else lo - pad, hi + pad)
+
+
+def shifted(ax: "Axes", transform, dx_pt: float):
+    """``transform`` moved right by ``dx_pt`` points (matplotlib.transforms.offset_copy)."""
+    if not dx_pt:
+        return transform
+    from matplotlib.transforms import offset_copy
+
+    return offset_copy(transform, fig=ax.figure, x=dx_pt, y=0.0, units="points")

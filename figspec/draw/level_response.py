@@ -7,9 +7,10 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from figspec.draw.colours import category_gid, unit_colours
+from figspec.draw.colours import category_gid, unit_colours, unit_markers
 from figspec.draw.context import DrawContext, Labels
-from figspec.draw.level_axis import draw_fit, level_limits, set_level_scale, versus_title
+from figspec.draw.level_axis import (draw_fit, level_limits, own_limits, set_level_scale, shifted, unit_shifts_pt,
+                                     versus_title)
 from figspec.optional import deferred
 from figspec.spec.models import LevelSpec
 from figspec.spec.panels import LevelResponsePanel
@@ -33,26 +34,33 @@ def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LevelResponsePanel,
     level axis at each unit's threshold by test."""
     points, curve, params = tables["points"], tables["fit"], tables["params"]
     colours = unit_colours(points["unit"], ctx.style)
+    markers = unit_markers(points["unit"], ctx.style)
     tested = panel.test != "none"
+    set_level_scale(ax, panel, points["level"].to_numpy())        # before any offset transform is made
+    shifts = dict(zip(colours, unit_shifts_pt(ax, panel, points["level"], len(colours), ctx.style.summary.marker_pt)))
     for unit, rows in points.groupby("unit", sort=False):
         c = colours[unit]
+        at = shifted(ax, ax.transData, shifts[unit])
         x, y = rows["level"].to_numpy(), rows["response"].to_numpy()
         err = np.vstack([y - rows["error_low"].to_numpy(), rows["error_high"].to_numpy() - y])
         line = "none" if panel.fit != "none" else "-"
-        ax.errorbar(x, y, yerr=np.nan_to_num(err), color=c, linestyle=line, marker="none", gid=f"errors:{unit}")
+        ax.errorbar(x, y, yerr=np.nan_to_num(err), color=c, linestyle=line, marker="none", gid=f"errors:{unit}",
+                    transform=at)
         sig = rows["significant"].to_numpy(dtype=bool) if tested else np.ones(len(rows), bool)
-        ax.plot(x[sig], y[sig], "o", color=c, markeredgecolor=c, label=ctx.unit_label(unit), gid=category_gid(unit))
-        ax.plot(x[~sig], y[~sig], "o", color="white", markeredgecolor=c, gid=f"points_ns:{unit}")
+        ax.plot(x[sig], y[sig], markers[unit], color=c, markeredgecolor=c, label=ctx.unit_label(unit), gid=category_gid(unit),
+                transform=at, clip_on=False, in_layout=False)
+        ax.plot(x[~sig], y[~sig], markers[unit], color="white", markeredgecolor=c, gid=f"points_ns:{unit}", transform=at,
+                clip_on=False, in_layout=False)
         draw_fit(ax, curve[curve["unit"] == unit], "response", c, unit)
-        thr = params[(params["unit"] == unit) & (params["quantity"] == "threshold_by_test")]["value"]
-        if len(thr) and np.isfinite(thr.iloc[0]):
-            ax.plot([thr.iloc[0]], [0.0], marker=6, color=c, clip_on=False, linestyle="none",
-                    transform=ax.get_xaxis_transform(), gid=f"threshold:{unit}")
+    thresholds = params[params["quantity"] == "threshold_by_test"].set_index("unit")["value"].dropna()
+    for level, units in thresholds.groupby(thresholds, sort=False).groups.items():
+        # units with one threshold level sit side by side, one marker width apart: none hides another
+        for unit, dx in zip(units, (np.arange(len(units)) - (len(units) - 1) / 2) * ctx.style.summary.marker_pt):
+            ax.plot([level], [0.0], marker=6, color=colours[unit], clip_on=False, linestyle="none", in_layout=False,
+                    transform=shifted(ax, ax.get_xaxis_transform(), float(dx)), gid=f"threshold:{unit}")
     if panel.subtract_baseline:
         ax.axhline(0.0, color="0.6", linewidth=ctx.style.axes.line_pt, zorder=0)
-    set_level_scale(ax, panel, points["level"].to_numpy())
-    if not panel.subtract_baseline:
-        ax.set_ylim(bottom=0)
+    own_limits(ax, limits(panel, tables))            # offset artists do not enter matplotlib's autoscaling
     handles, names = ax.get_legend_handles_labels()
     if len(colours) == 1:                        # one unit: the key explains markers only
         handles, names = [], []

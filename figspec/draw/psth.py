@@ -36,6 +36,19 @@ def nice_top(value: float) -> float:
     return float(10.0 ** (exponent + 1))
 
 
+TIDY = (1.0, 1.2, 1.4, 1.6, 1.8, 2.0, 2.5, 3.0, 3.5, 4.0, 5.0, 6.0, 7.0, 8.0, 9.0, 10.0)
+
+
+def tidy_top(value: float) -> float:
+    """The axis top just above ``value`` on a tidy grid (multiples of 0.2 up to 2, of 0.5 up to 4, of 1
+    up to 10, x 10^k): at most a quarter above the data, so no row is half empty (a peak of 101.7
+    gets 120, not 200)."""
+    if not np.isfinite(value) or value <= 0:
+        return 1.0
+    exponent = np.floor(np.log10(value))
+    return float(next(t * 10.0 ** exponent for t in TIDY if t * 10.0 ** exponent >= value * (1 - 1e-9)))
+
+
 def _bands(table: pd.DataFrame, panel: PsthPanel) -> tuple[pd.Series, pd.Series]:
     """Lower and upper extent drawn for each bin (mean -/+ SEM for a population)."""
     sem = table["rate_sem"].fillna(0) if "rate_sem" in table else 0.0
@@ -116,10 +129,10 @@ def _spacing(values: np.ndarray) -> float:
 
 
 def _limits(lower: pd.Series, upper: pd.Series, panel: PsthPanel) -> tuple[float, float]:
-    """y-limits from 0 (or below, for z-scores) to a round top covering every value."""
+    """y-limits from 0 (or below, for z-scores) to a tidy top just above every value."""
     low = float(np.nanmin(lower)) if len(lower) else 0.0
-    bottom = -nice_top(-low) if panel.measure == "z_score" and low < 0 else 0.0
-    return bottom, panel.y_max or nice_top(float(np.nanmax(upper)) if len(upper) else 1.0)
+    bottom = -tidy_top(-low) if panel.measure == "z_score" and low < 0 else 0.0
+    return bottom, panel.y_max or tidy_top(float(np.nanmax(upper)) if len(upper) else 1.0)
 
 
 def limits(panel: PsthPanel, table: pd.DataFrame) -> dict[str, tuple[float, float]]:

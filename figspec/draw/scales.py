@@ -15,14 +15,16 @@ Scale = tuple[float, float, float | None]          # (low, high, tick step or No
 
 
 def rounded_limits(low: float, high: float) -> tuple[float, float, float]:
-    """Round limits covering [low, high] on a 1-2-2.5-5 grid of about three steps, keeping 0 as
-    the bottom when nothing is negative. Returns (low, high, step)."""
+    """Limits covering [low, high], ticks on a 1-2-2.5-5 grid of about three steps, keeping 0 as
+    the bottom and a tidy top just above the data when nothing is negative. Returns (low, high, step)."""
     from matplotlib.ticker import MaxNLocator
+
+    from figspec.draw.psth import tidy_top
 
     ticks = MaxNLocator(nbins=3, steps=[1, 2, 2.5, 5, 10]).tick_values(min(low, 0.0) if low >= 0 else low, high)
     lo, hi = float(ticks[0]), float(ticks[-1])
-    if low >= 0:
-        lo = max(lo, 0.0)
+    if low >= 0:                 # the top just above the data on a tidy grid, ticks at the round step
+        lo, hi = max(lo, 0.0), max(tidy_top(high), float(ticks[1] - ticks[0]))
     return lo, hi, float(ticks[1] - ticks[0])
 
 

@@ -111,7 +111,7 @@ def mark_stimulus(ax: "Axes", window: pd.Series, colour: str, alpha: float, styl
 
 
 def stimulus_key(fig, appearance: dict[float, tuple], label: str, level_text, ranges: bool,
-                 under: list | None = None) -> None:
+                 under: list | None = None, sham: list[float] = ()) -> None:
     """A small key under ``fig`` (the figure, or the one panel's subfigure that shows the
     stimulus): the stimulus at the lowest, a middle and the highest level. With ``under`` (the
     subfigures of several shaded panels), the figure's key is centred under their union."""
@@ -122,8 +122,11 @@ def stimulus_key(fig, appearance: dict[float, tuple], label: str, level_text, ra
     shown = list(dict.fromkeys(shown))
     handles = [Patch(facecolor=appearance[lv][0], alpha=appearance[lv][1], linewidth=0) for lv in shown]
     labels = [level_text(lv) for lv in shown]
+    for lv in sham:                          # drawn unshaded: the key says so with an empty box
+        handles.append(Patch(facecolor="none", edgecolor="0.6", linewidth=0.5))
+        labels.append(f"{level_text(lv)}: none")
     title = label + (" (fainter: range of onsets or offsets across trials)" if ranges else "")
-    key = fig.legend(handles, labels, loc="outside lower center", ncols=len(shown), title=title,
+    key = fig.legend(handles, labels, loc="outside lower center", ncols=min(len(handles), 3), title=title,
                      title_fontsize=None, handlelength=1.5, columnspacing=1.2, alignment="center")
     if under:
         centre_under(key, fig, under)

@@ -15,7 +15,7 @@ from pydantic import Field, field_validator, model_validator
 from figspec.errors import Problem, toml_text
 from figspec.spec.analysis import AnalysisSpec
 from figspec.spec.layout import LayoutSpec, SharedGroup, grid_problems
-from figspec.spec.fields import (MAX_PANELS, ColourMap, Fraction, Frozen, Millimetres, Name, Text,
+from figspec.spec.fields import (MAX_PANELS, ColourMap, Fraction, Frozen, Level, Millimetres, Name, Text,
                                   TimeMs)
 from figspec.spec.panel_base import PanelBase
 from figspec.spec.panels import Panel
@@ -109,6 +109,10 @@ class StimulusSpec(Frozen):
     colormap: ColourMap | None = None
     wavelength_nm: Annotated[float, Field(ge=380, le=780)] | None = None
     key: bool = True
+    sham_levels: Annotated[list[Level], Field(max_length=200)] | None = Field(
+        None, description="Levels at which no stimulus was presented (a sham, contrast 0 %, silence): left "
+        "unshaded and named so in the key. Default: a level of 0 of a linear quantity (levels.scale = 'linear', "
+        "or a unit that is not in dB); [] shades every level.")
 
     @model_validator(mode="after")
     def _one_window(self) -> "StimulusSpec":
@@ -142,6 +146,16 @@ class FigureFile(Frozen):
     panels: list[Panel] = Field(min_length=1, max_length=MAX_PANELS)
     shared: list[SharedGroup] = Field(default_factory=list)
     style: dict[str, Any] | None = None
+
+
+def sham_levels(spec: FigureFile) -> frozenset[float]:
+    """The levels drawn without a stimulus mark: the spec's ``sham_levels``, else a level of 0 of
+    a linear quantity (0 % contrast, 0 Pa: nothing was presented; 0 dB SPL is a sound)."""
+    if spec.stimulus.sham_levels is not None:
+        return frozenset(float(v) for v in spec.stimulus.sham_levels)
+    unit = spec.levels.unit.lower()
+    linear = spec.levels.scale == "linear" or (spec.levels.scale is None and unit != "" and "db" not in unit)
+    return frozenset({0.0}) if linear else frozenset()
 
 
 def source_name(spec: FigureFile, panel: PanelBase) -> str | list[str] | None:

@@ -10,6 +10,7 @@ from figspec.compute.stimulus import stimulus_table
 from figspec.errors import UserError
 from figspec.optional import deferred
 from figspec.registry import kind_of
+from figspec.spec.models import sham_levels
 from figspec.steps.resolve import Resolved
 
 pd = deferred("pandas")          # imported on first use: checking a spec needs no pandas
@@ -41,6 +42,7 @@ def compute(resolved: Resolved) -> Tables:
     """The tables of every panel of a resolved spec."""
     model = resolved.spec.model
     panels, stimulus = {}, {}
+    sham = sham_levels(model)
     for i, panel in enumerate(resolved.panels):
         rec = resolved.recording(panel)
         kind = kind_of(panel)
@@ -50,6 +52,6 @@ def compute(resolved: Resolved) -> Tables:
             raise type(err)([resolved.spec.locate(replace(p, loc=("panels", i) + p.loc))
                              for p in err.problems]) from None
         if kind.layout == "rows":
-            stimulus[panel.name] = pd.concat([stimulus_table(rec, u, model.stimulus, panel.levels)
+            stimulus[panel.name] = pd.concat([stimulus_table(rec, u, model.stimulus, panel.levels, sham)
                                               for u in panel.stimulus_units()], ignore_index=True)
     return Tables(panels=panels, stimulus=stimulus)

@@ -58,7 +58,7 @@ def _repeats(resolved: Resolved, panel, table, stim) -> tuple[list, list[str]]:
         if "n_units" in table:               # a population: the trials of every unit, and how many units
             n = table.groupby("level")["n_trials"].first()
             pooled = table.groupby("level")["n_units"].first()
-            text = {g: f"\nn = {int(n[g])} ({int(pooled[g])} units)" for g in groups}
+            text = {g: f"\nn = {int(pooled[g])} units ({int(n[g])} trials)" for g in groups}   # SEM is across units
         elif "n_shown" in table:             # a seeded subset of the trials is drawn
             n = stim.groupby("level")["n_trials"].first()
             shown = table.groupby("level")["n_shown"].first()

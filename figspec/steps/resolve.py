@@ -4,6 +4,7 @@ into each panel what figspec decides (its source and unit, automatic widths)."""
 from __future__ import annotations
 
 import difflib
+import warnings
 from dataclasses import dataclass, replace
 from pathlib import Path
 
@@ -13,12 +14,12 @@ from figspec.data.keep import select_trials
 from figspec.data.pooling import pool, pooled_name
 from figspec.data.readers import load_source
 from figspec.data.recording import Recording
-from figspec.errors import DataError, Problem, UserError, toml_text
+from figspec.errors import DataError, FigspecWarning, Problem, UserError, toml_text
 from figspec.registry import kind_of
 from figspec.spec.fields import MAX_AXES, MAX_PIXELS
 from figspec.spec.layout import panel_box_mm
 from figspec.spec.loader import LoadedSpec
-from figspec.spec.models import source_name
+from figspec.spec.models import sham_levels, source_name
 from figspec.spec.panel_base import PanelBase
 from figspec.spec.style import Style
 from figspec.spec.style_files import ResolvedStyle, resolve_style
@@ -80,6 +81,7 @@ def resolve(spec: LoadedSpec, style: str | None = None, frames: dict | None = No
     problems = figure_limits(spec.model, [(p, rec) for p, rec, _ in done])
     if problems:
         raise spec.error(problems)
+    warn_repeated_colours([p for p, _, _ in done], resolved_style.style)
     fig = spec.model.figure
     done = [(kind_of(p).fit_page(rec, p, (*panel_box_mm(fig.width_mm, fig.height_mm, spec.model.layout,
                                                         list(spec.model.panels), i),
@@ -280,6 +282,19 @@ def axes_count(panel: PanelBase, rec: Recording) -> int:
     return len(panel.levels) if panel.levels is not None else len(rec.levels)
 
 
+def warn_repeated_colours(panels: list[PanelBase], style: Style) -> None:
+    """A panel that tells units apart by colour and shows more units than the palette has colours
+    repeats colours (told apart by marker shape, see draw.colours.unit_markers): said before drawing."""
+    size = len(style.palette.units)
+    for i, p in enumerate(panels):
+        by_colour = not hasattr(p, "arrange") or (p.arrange == "overlay" and p.repeat == "unit")
+        if by_colour and len(p.unit_names()) > size:
+            warnings.warn(f"panels[{i}] ({p.name}) shows {len(p.unit_names())} units but the style's palette has {size} "
+                          f"colours: units {size + 1}-{len(p.unit_names())} repeat colours"
+                          + (" and differ by marker shape" if not hasattr(p, "arrange") else " (lines differ only by colour)")
+                          + "; consider fewer units per panel", FigspecWarning, stacklevel=2)
+
+
 def figure_limits(model, panels: list[tuple[PanelBase, Recording]]) -> list[Problem]:
     """Limits that keep a figure renderable: its PNG's pixels and its number of axes."""
     problems = []
@@ -292,6 +307,7 @@ def figure_limits(model, panels: list[tuple[PanelBase, Recording]]) -> list[Prob
     if model.stimulus.opacity_scale == "log":
         shown = np.concatenate([np.asarray(p.levels if p.levels is not None else rec.levels, dtype=float)
                                 for p, rec in panels])
+        shown = shown[~np.isin(shown, np.asarray(sorted(sham_levels(model)), dtype=float))]   # drawn unshaded
         if shown.size and shown.min() <= 0:
             problems.append(Problem(f"a logarithmic opacity scale needs levels > 0, but a panel shows level "
                                     f"{shown.min():g}: use opacity_scale = 'linear', or leave that level out with "

@@ -50,7 +50,8 @@ def legend(resolved: Resolved, tables: Tables) -> str:
     letters = panel_letters(model.layout, list(model.panels))
     sentences = []
     for declared, panel in zip(model.panels, resolved.panels):
-        about = About(letters.get(panel.name, panel.name), declared, model.levels.unit)
+        about = About(letters.get(panel.name, panel.name), declared, model.levels.unit, model.levels.scale,
+                      model.units.label)
         sentences.append(kind_of(panel).legend(panel, tables.panels[panel.name], about))
     return legend_text(model.figure.title, sentences)
 
