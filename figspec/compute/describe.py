@@ -68,6 +68,16 @@ def shown_unit(unit: str, about: "About | None") -> str:
     return unit if label == unit else f"{label} ({unit})"
 
 
+def window_text(window: tuple[float, float]) -> str:
+    """A window as a legend states it: ``-60–0 ms``."""
+    return f"{window[0]:g}–{window[1]:g} ms"
+
+
+def window_columns(panel) -> dict[str, str]:
+    """The response and baseline windows of a testing panel, as source-data columns."""
+    return {name: f"{getattr(panel, name)[0]:g} to {getattr(panel, name)[1]:g}" for name in ("response_ms", "baseline_ms")}
+
+
 def generic_legend(panel, tables, about: About) -> str:
     """A sentence naming the panel's kind, units and trials, for a kind without its own."""
     frames = tables.values() if isinstance(tables, dict) else [tables]

@@ -10,7 +10,8 @@ from __future__ import annotations
 import numpy as np
 
 from figspec.compute import level_checks
-from figspec.compute.describe import OFFSET_SENTENCE, About, count_text, shown_unit, unit_text
+from figspec.compute.describe import (OFFSET_SENTENCE, About, count_text, shown_unit, unit_text, window_columns,
+                                      window_text)
 from figspec.compute.fit_tables import UnitPoints, empty_params, fit_rows, fit_sentence, fit_tables, linear_positive
 from figspec.compute.resampling import generator, presentation_order
 from figspec.compute.selection import select, spanning
@@ -151,8 +152,7 @@ def latency_points(rec: Recording, panel: LatencyPanel, first_times: dict | None
     out = pd.concat(frames, ignore_index=True)
     out["correction"] = CORRECTION_SHORT[panel.correction]
     out["responsive"] = out["p_corrected"] < panel.alpha
-    out["response_ms"] = f"{panel.response_ms[0]:g} to {panel.response_ms[1]:g}"
-    out["baseline_ms"] = f"{panel.baseline_ms[0]:g} to {panel.baseline_ms[1]:g}"
+    out = out.assign(**window_columns(panel))
     out["in_fit"] = out["latency_ms"].notna() & (out["responsive"] | (panel.fit_levels == "all"))
     return out
 
@@ -197,10 +197,6 @@ def compute(rec: Recording, panel: LatencyPanel, levels: LevelSpec) -> dict[str,
     return {"points": points, "fit": curve, "params": table}
 
 
-def _window(window: tuple[float, float]) -> str:
-    return f"{window[0]:g}–{window[1]:g} ms"
-
-
 def _joined(notes: pd.Series, text: str) -> pd.Series:
     return notes.where(notes == "", notes + "; ") .fillna("") + text
 
@@ -230,7 +226,7 @@ def legend(panel: LatencyPanel, tables: dict[str, pd.DataFrame], about: About) -
         text += f" {OFFSET_SENTENCE}"
     left_out = points[~points["in_fit"] & points["latency_ms"].notna()] if panel.fit != "none" else points.iloc[:0]
     text += (f" Open markers: levels without a significant response (one-sided Wilcoxon signed-rank test of the "
-             f"rate in {_window(panel.response_ms)} vs the baseline rate in {_window(panel.baseline_ms)} per trial, "
+             f"rate in {window_text(panel.response_ms)} vs the baseline rate in {window_text(panel.baseline_ms)} per trial, "
              f"trials with equal rates {ZERO_TEXT[panel.zero_differences]}, {CORRECTION_TEXT[panel.correction]}, "
              f"p ≥ {panel.alpha:g}).")
     if len(left_out):

@@ -6,9 +6,9 @@ from __future__ import annotations
 import numpy as np
 
 from figspec.compute import level_checks
-from figspec.compute.describe import OFFSET_SENTENCE, About, count_text, unit_text
+from figspec.compute.describe import OFFSET_SENTENCE, About, count_text, unit_text, window_columns
 from figspec.compute.fit_tables import UnitPoints, empty_params, fit_rows, fit_sentence, fit_tables
-from figspec.compute.resampling import generator, presentation_order
+from figspec.compute.resampling import generator
 from figspec.compute.selection import select, spanning
 from figspec.compute.stats import CORRECTION_SHORT, CORRECTION_TEXT, ZERO_TEXT, bootstrap_ci, corrected, sem, signed_rank_p
 from figspec.compute.trial_counts import counts_in
@@ -26,7 +26,7 @@ def per_trial_responses(rec: Recording, unit: str, panel: LevelResponsePanel):
     """(levels, evoked counts, baseline counts) of every trial presented, trials in presentation
     order within each level (so resampling depends neither on the order of rows nor on key spelling)."""
     sel = select(rec, unit, spanning(panel.response_ms, panel.baseline_ms), panel.levels)
-    order = np.lexsort((presentation_order(sel.trials["sequence"]).argsort(), sel.trial_level))
+    order = np.lexsort((sel.trials["sequence"], sel.trial_level))       # by level, then presentation
     return (sel.trials["level"][order], counts_in(sel, panel.response_ms)[order],
             counts_in(sel, panel.baseline_ms)[order])
 
@@ -95,9 +95,7 @@ def response_points(rec: Recording, panel: LevelResponsePanel, values: dict | No
     out["response_unit"] = "spikes/s" if panel.measure == "spikes_per_s" else "spikes"
     out["test"] = (f"Wilcoxon signed-rank, one-sided, zero differences {ZERO_TEXT[panel.zero_differences]}, "
                    f"{CORRECTION_SHORT[panel.correction]}" if panel.test == "wilcoxon" else "none")
-    out["response_ms"] = f"{panel.response_ms[0]:g} to {panel.response_ms[1]:g}"
-    out["baseline_ms"] = f"{panel.baseline_ms[0]:g} to {panel.baseline_ms[1]:g}"
-    return out
+    return out.assign(**window_columns(panel))
 
 
 # SEM of one spike among n trials: values (1, 0, ..., 0) have SD sqrt(1/n) and SEM 1/n (spikes),

@@ -197,20 +197,20 @@ def check_inside_extent(ticks: np.ndarray, table: Table, pair_trial: np.ndarray,
     if not (np.isfinite(lo).any() or np.isfinite(hi).any()):
         return
     outside = 0
-    inside_per_unit = np.zeros(len(units), dtype=np.int64)
+    total, inside = np.zeros(len(units), dtype=np.int64), np.zeros(len(units), dtype=np.int64)
     for start in range(0, ticks.size, chunk):
         p = pair[start:start + chunk]
         t, k = ticks[start:start + chunk], pair_trial[p]
         out = (t < lo[k]) | (t >= hi[k])
         outside += int(np.count_nonzero(out))
-        inside_per_unit += np.bincount(pair_unit[p[~out]], minlength=len(units))
+        total += np.bincount(pair_unit[p], minlength=len(units))
+        inside += np.bincount(pair_unit[p[~out]], minlength=len(units))
     hint = (f"is time_unit = {layout.time_unit!r} right, and are spike and trial times on the same clock "
             f"({layout.clock!r})?")
     if ticks.size and outside == ticks.size:
         raise DataError(Problem(f"no spike falls inside its trial's recorded extent: {hint}",
                                 layout.locs.get("time", ()), layout.where))
-    check_every_unit_inside(np.bincount(pair_unit[pair], minlength=len(units)), inside_per_unit, units,
-                            "inside its trial's recorded extent", layout)
+    check_every_unit_inside(total, inside, units, "inside its trial's recorded extent", layout)
     if outside > ticks.size / 2:
         warnings.warn(f"{layout.where}: {outside} of {ticks.size} spikes fall outside their trial's recorded extent: "
                       f"{hint}", FigspecWarning, stacklevel=3)
