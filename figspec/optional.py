@@ -13,8 +13,6 @@ from types import ModuleType
 from figspec.errors import DataError, Loc, Problem
 
 EXTRAS: dict[str, str] = {   # importable module -> the extra of pyproject.toml that installs it
-    "pyarrow.parquet": "parquet",
-    "pyarrow": "parquet",
     "pynwb": "nwb",
     "distributed": "cluster",
     "watchfiles": "preview",

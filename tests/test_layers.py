@@ -15,7 +15,7 @@ LAYERS = ["base", "spec", "data", "compute", "draw", "output", "registry", "step
 BASE = {"figspec", "figspec.errors", "figspec.optional", "figspec.__init__"}   # importable from every layer
 THIRD_PARTY = {  # what each layer may import besides the standard library and earlier layers
     "spec": {"pydantic", "tomli"},
-    "data": {"numpy", "pandas"},
+    "data": {"numpy", "pandas", "pyarrow", "h5py"},
     "compute": {"numpy", "pandas", "scipy"},
     "draw": {"numpy", "pandas", "matplotlib"},
     "output": {"numpy", "pandas", "matplotlib", "PIL"},

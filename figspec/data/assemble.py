@@ -27,9 +27,9 @@ import numpy as np
 
 from figspec.data.by_time import assign_by_time, check_every_unit_inside
 from figspec.data.keep import select_trials, shown
-from figspec.data.recording import Recording
-from figspec.data.table import (Table, count_missing, factorize, first_of_each, index_in, is_missing, lookup, missing,
-                                numbers, row_codes, text)
+from figspec.data.recording import Recording, natural_key
+from figspec.data.table import (Coded, Table, coded, count_missing, factorize, first_of_each, index_in, is_missing,
+                                lookup, missing, numbers, row_codes, text)
 from figspec.data.trials_from_spikes import TrialCounts, trials_from_spikes
 from figspec.errors import DataError, FigspecWarning, Loc, Problem
 from figspec.spec.selection import TrialSelection
@@ -129,7 +129,7 @@ def assemble(spikes, trials, layout: Layout) -> Recording:
     """Build a :class:`Recording` from canonical tables (or DataFrames) laid out as ``layout`` says."""
     spikes = Table.of(spikes)
     trials = None if trials is None else Table.of(trials)
-    unit_names, unit_code = unit_codes(spikes["unit"], layout)
+    unit_names, unit_code, unread = unit_codes(spikes.raw("unit"), layout)
     spikes = spikes.select([c for c in spikes if c != "unit"])          # (large arrays are let go when done)
     spike_t = to_ticks(spikes["time"], layout, "spike times", "time")
     if trials is None:
@@ -166,17 +166,26 @@ def assemble(spikes, trials, layout: Layout) -> Recording:
     shown_cols = ["trial", "sequence", "level", "stim_start_ms", "stim_stop_ms", "extent_lo_ms", "extent_hi_ms"]
     shown_cols += (["unit"] if per_unit else []) + [c for c in table if c.startswith("where:")]
     rec = Recording(units=tuple(units), trials=table.select(shown_cols), pair_unit=pair_unit, pair_trial=pair_trial,
-                    offsets=offsets, ticks=ticks[order], ticks_per_ms=layout.ticks_per_ms)
+                    offsets=offsets, ticks=ticks[order], ticks_per_ms=layout.ticks_per_ms,
+                    unread_units=tuple(sorted(set(unread.tolist()) - set(units), key=natural_key)))
     return rec.keep_trials(keep, removed)
 
 
-def unit_codes(values: np.ndarray, layout: Layout) -> tuple[np.ndarray, np.ndarray]:
-    """(unit names as stripped text, each spike's code into them). The distinct values are
-    found first and only they are checked and turned into text; an empty field is an error."""
+def unit_codes(values, layout: Layout) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """(unit names as stripped text, each spike's code into them, names of units whose rows the
+    reader left out). The distinct values are found first (or come with a coded column, as
+    Arrow read them) and only they are checked and turned into text; an empty field is an error."""
     try:
-        distinct, codes = factorize(values)
+        distinct, codes = coded(values)
     except TypeError:                       # text mixed with None or NaN, which do not sort with it
         distinct, codes = factorize(np.where(missing(values), "", np.asarray(values).astype(str)))
+    unread = distinct[:0]
+    if isinstance(values, Coded):           # a reader that kept some units' rows: drop the names of the others
+        check_unit_names(text(distinct[~missing(distinct)]), layout)
+        present = np.bincount(codes, minlength=distinct.size) > 0
+        if not present.all():
+            unread = text(distinct[~present & ~missing(distinct)])
+            distinct, codes = distinct[present], (np.cumsum(present) - 1)[codes]
     empty = np.flatnonzero(missing(distinct))
     if empty.size:
         rows = int(np.count_nonzero(np.isin(codes, empty)))
@@ -184,7 +193,7 @@ def unit_codes(values: np.ndarray, layout: Layout) -> tuple[np.ndarray, np.ndarr
                                 layout.locs.get("unit", ()), "an empty field"))
     names, renamed = np.unique(text(distinct), return_inverse=True)    # " u1" and "u1" are one unit
     renamed = renamed.reshape(-1)
-    return names, (codes if np.array_equal(renamed, np.arange(distinct.size)) else renamed[codes])
+    return names, (codes if np.array_equal(renamed, np.arange(distinct.size)) else renamed[codes]), unread
 
 
 def check_inside_extent(ticks: np.ndarray, table: Table, pair_trial: np.ndarray, pair: np.ndarray, layout: Layout,
@@ -423,8 +432,3 @@ def pair_of_spikes(spikes: Table, spike_unit: np.ndarray, trials: Table, keys: l
                                 f"trial keys that are not in the trial table of {layout.where}",
                                 layout.locs.get("key0", ()), f"first: {first}"))
     return pair
-
-
-def natural_key(name: str) -> tuple:
-    """Sort 'u2' before 'u10'."""
-    return tuple((0, int(p), "") if p.isdigit() else (1, 0, p) for p in re.split(r"(\d+)", name))

@@ -1,25 +1,39 @@
-"""CSV source: delimited spike and trial tables, columns named in the spec."""
+"""CSV source: delimited spike and trial tables, columns named in the spec, read by Arrow.
+
+The file is parsed by ``pyarrow.csv.open_csv`` (Apache Arrow's streaming CSV reader): only the
+planned columns, with the types the spec implies, batch by batch, so memory follows the rows a
+spec keeps and not the file. Unit names and trial keys are read as dictionary arrays (each
+distinct text once, a 32-bit code per row): no string per spike, no sort of strings. figspec's
+own code here only says what Arrow does not: which key the file and column came from, the line
+of a ragged row, the delimiter a one-column header suggests.
+"""
 
 from __future__ import annotations
 
+import codecs
 import csv
-import warnings
 from pathlib import Path
 
 import numpy as np
 
 from figspec.data.columns import Plan, missing_columns
-from figspec.data.table import Table
+from figspec.data.table import Coded, Table
 from figspec.errors import DataError, Loc, Problem
 from figspec.spec.sources import CsvSource
 
 DELIMITER_NAMES = {",": "comma", ";": "semicolon", "\t": "tab", "|": "bar", " ": "space"}
+BLOCK_BYTES = 8 << 20           # Arrow's block: one batch of rows at a time
+LONGEST_FIELD = 1000            # characters in a unit name, trial key or selection value
 
 
-def read(src: CsvSource, folder: Path, loc: Loc, plans: tuple[Plan, Plan | None]) -> tuple[Table, Table | None]:
-    """The canonical spike table and trial table (None without a trial table) of a CSV source."""
+def read(src: CsvSource, folder: Path, loc: Loc, plans: tuple[Plan, Plan | None],
+         units: set[str] | None = None) -> tuple[Table, Table | None]:
+    """The canonical spike table and trial table (None without a trial table) of a CSV source.
+    ``units``: the units the spec uses (only their spikes are kept; None keeps all)."""
     spike_plan, trial_plan = plans
-    spikes = read_table(folder / src.spikes, spike_plan, loc + ("spikes",), src.delimiter, loc)
+    keep = units if (trial_plan is not None and src.unit_name is None) else None     # trials from spikes need all
+    spikes = read_table(folder / src.spikes, spike_plan, loc + ("spikes",), src.delimiter, loc, keep,
+                        samples="time" if src.time_unit == "samples" else None)
     trials = None
     if trial_plan is not None and src.trials is not None:
         trials = read_table(folder / src.trials, trial_plan, loc + ("trials",), src.delimiter, loc)
@@ -41,9 +55,9 @@ def check_file(path: Path, file_loc: Loc) -> None:
 
 def ragged_row(path: Path, delimiter: str, n_fields: int, file_loc: Loc = ()) -> tuple[int, int] | None:
     """(line number, fields) of the first row whose number of fields differs from the
-    header's, or None. Counted with numpy over the file's bytes (one pass, no Python loop over
-    rows); a file with quoted fields goes through the csv module instead, which knows quotes
-    (a quote never closed is an error naming the line it opens on)."""
+    header's, or None. Only called once Arrow has refused a row (its message has no line
+    number): counted with numpy over the file's bytes, or, for a file with quoted fields, by
+    the csv module, which knows quotes (a quote never closed is an error naming its line)."""
     data = path.read_bytes()
     if b'"' in data:
         with open(path, encoding="utf-8-sig", newline="") as handle:
@@ -69,19 +83,24 @@ def ragged_row(path: Path, delimiter: str, n_fields: int, file_loc: Loc = ()) ->
     return (int(bad[0]) + 1, int(counts[bad[0]]) + 1) if bad.size else None
 
 
+NOT_UTF8 = "is not UTF-8 text: is it a CSV file (or another format, e.g. Parquet: set format)?"
+
+
 def _header(path: Path, delimiter: str, file_loc: Loc) -> list[str]:
+    """The header's column names, read by the csv module from the first line (at most 1 MB)."""
+    with open(path, "rb") as handle:
+        head = handle.read(1 << 20)
     try:
-        with open(path, encoding="utf-8-sig", newline="") as handle:
-            first = handle.readline()
+        codecs.getincrementaldecoder("utf-8-sig")().decode(head[:1 << 16], final=False)
+        text = head.split(b"\n", 1)[0].decode("utf-8-sig")
     except UnicodeDecodeError:
-        raise DataError(Problem(f"{path} is not UTF-8 text: is it a CSV file (or another format, e.g. "
-                                "Parquet: set format)?", file_loc)) from None
-    if not first.strip():
+        raise DataError(Problem(f"{path} {NOT_UTF8}", file_loc)) from None
+    if not text.strip():
         raise DataError(Problem(f"{path} is empty: a CSV file starts with a header row", file_loc))
-    if "\x00" in first or b"\x00" in path.read_bytes()[:1 << 20]:
+    if b"\x00" in head:
         raise DataError(Problem(f"{path} holds NUL bytes: is it a text file in UTF-8 (or another format, e.g. "
                                 "Parquet: set format)?", file_loc))
-    return next(csv.reader([first], delimiter=delimiter))
+    return next(csv.reader([text.rstrip("\r")], delimiter=delimiter))
 
 
 def _delimiter_problem(header: list[str], delimiter: str, path: Path, loc: Loc) -> Problem | None:
@@ -96,11 +115,22 @@ def _delimiter_problem(header: list[str], delimiter: str, path: Path, loc: Loc) 
     return None
 
 
-def read_table(path: Path, wanted: Plan, file_loc: Loc, delimiter: str = ",", src_loc: Loc = ()) -> Table:
-    """Read the planned columns of a delimited file, renamed to canonical names: unit names as
-    text, trial keys as integers when every one is (else text), selection columns as text,
-    times and levels as numbers when every field is one (else text, so the assembly can say
-    which field is not)."""
+def _kind(column: str, wanted: Plan, samples: str | None) -> str:
+    """How a file column is read: "text" (unit names, trial keys, selection columns: coded,
+    keys turned into integers afterwards when every one is), "whole" (sample indices) or
+    "number" (a column serving twice takes the first of these it needs)."""
+    roles = [canonical for canonical, (c, _) in wanted.items() if c == column]
+    if any(r == "unit" or r.startswith(("where:", "key")) for r in roles):
+        return "text"
+    return "whole" if samples in roles else "number"
+
+
+def read_table(path: Path, wanted: Plan, file_loc: Loc, delimiter: str = ",", src_loc: Loc = (),
+               units: set[str] | None = None, samples: str | None = None) -> Table:
+    """Read the planned columns of a delimited file, renamed to canonical names: unit names
+    coded, trial keys as integers when every one is (else text), selection columns as text,
+    times and levels as numbers (sample indices, the ``samples`` column, as integers). A field
+    that is not a number is kept as text, so the assembly can say which and where."""
     check_file(path, file_loc)
     header = _header(path, delimiter, file_loc)
     wrong = _delimiter_problem(header, delimiter, path, src_loc)
@@ -109,61 +139,139 @@ def read_table(path: Path, wanted: Plan, file_loc: Loc, delimiter: str = ",", sr
     problems = missing_columns(header, wanted, str(path))
     if problems:
         raise DataError(problems)
-    ragged = ragged_row(path, delimiter, len(header), file_loc)
-    if ragged is not None:
-        line, fields = ragged
-        raise DataError(Problem(f"line {line} of {path} has {fields} fields, the header {len(header)}: a missing "
-                                "or extra delimiter?", file_loc))
     names = sorted({column for column, _ in wanted.values()}, key=header.index)
-    kinds = {column: _kind(column, wanted) for column in names}
-    columns = _parse(path, delimiter, [header.index(c) for c in names], names, kinds, file_loc)
-    if not columns[names[0]].size:
-        raise DataError(Problem(f"{path} has a header but no rows", file_loc))
-    return Table({canonical: columns[column] for canonical, (column, _) in wanted.items()})
-
-
-def _kind(column: str, wanted: Plan) -> str:
-    """How a file column is parsed: "text" for unit names and selection columns, "whole" for
-    a trial key, else "number" (a column serving twice takes the first of these it needs)."""
-    roles = [canonical for canonical, (c, _) in wanted.items() if c == column]
-    if any(r == "unit" or r.startswith("where:") for r in roles):
-        return "text"
-    return "whole" if any(r.startswith("key") for r in roles) else "number"
-
-
-FIRST_TRY = {"text": object, "whole": np.int64, "number": np.float64}
-
-
-def _parse(path: Path, delimiter: str, usecols: list[int], names: list[str], kinds: dict[str, str],
-           file_loc: Loc) -> dict[str, np.ndarray]:
-    """The columns in one pass of numpy's CSV reader with the types ``kinds`` asks for; when a
-    field does not fit its type, again with every column as text, each column then converted
-    on its own where it can be (so a text trial key or a blank time is seen, not lost)."""
-    def load(dtype):
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore", UserWarning)              # "input contained no data"
-            return np.loadtxt(path, delimiter=delimiter, skiprows=1, usecols=usecols, dtype=dtype, comments=None,
-                              quotechar='"', encoding="utf-8", ndmin=1)
+    kinds = {column: _kind(column, wanted, samples) for column in names}
+    unit_column = wanted["unit"][0] if "unit" in wanted and units is not None else None
     try:
-        try:
-            rows = load([(f"f{i}", FIRST_TRY[kinds[c]]) for i, c in enumerate(names)])
-            out = {c: rows[f"f{i}"] for i, c in enumerate(names)}
-        except (ValueError, OverflowError):
-            rows = load([(f"f{i}", object) for i in range(len(names))])
-            out = {c: _converted(rows[f"f{i}"], kinds[c]) for i, c in enumerate(names)}
-    except UnicodeDecodeError:
-        raise DataError(Problem(f"{path} is not UTF-8 text: is it a CSV file (or another format, e.g. "
-                                "Parquet: set format)?", file_loc)) from None
-    except (ValueError, OSError) as err:
-        raise DataError(Problem(f"cannot read {path} as CSV: {str(err).strip().splitlines()[-1]}", file_loc)) from None
-    # Copies, not views of the parsed rows: a view would keep every row's Python strings alive.
-    return {c: values.astype(str) if values.dtype == object else np.array(values) for c, values in out.items()}
+        columns = _stream(path, delimiter, kinds, unit_column, units)
+    except _NotANumber:
+        columns = _stream(path, delimiter, {c: "text" for c in kinds}, unit_column, units)
+        columns = {c: (v if kinds[c] == "text" or v is None else v.decoded()) for c, v in (columns or {}).items()} or None
+    except _Refused as err:
+        raise DataError(_refusal(path, delimiter, header, str(err), file_loc)) from None
+    if columns is None:
+        raise DataError(Problem(f"{path} has a header but no rows", file_loc))
+    _check_lengths(columns, path, wanted)
+    out = {}
+    for canonical, (column, _) in wanted.items():
+        values = columns[column]
+        if isinstance(values, Coded) and canonical != "unit":
+            values = _whole_numbers(values)
+        out[canonical] = values
+    return Table(out)
 
 
-def _converted(values: np.ndarray, kind: str) -> np.ndarray:
-    if kind != "text":
-        try:
-            return values.astype(FIRST_TRY[kind])
-        except (ValueError, OverflowError):
-            pass
-    return values
+class _NotANumber(Exception):
+    pass
+
+
+class _Refused(Exception):
+    pass
+
+
+def _stream(path: Path, delimiter: str, kinds: dict[str, str], unit_column: str | None,
+            units: set[str] | None) -> dict | None:
+    """The columns, batch by batch through Arrow; with ``unit_column``, only rows whose unit is
+    one of ``units`` (or empty, so the assembly can report it). None when the file has no rows."""
+    import pyarrow as pa
+    import pyarrow.csv as pcsv
+
+    types = {"text": pa.dictionary(pa.int32(), pa.string()), "whole": pa.int64(), "number": pa.float64()}
+    convert = pcsv.ConvertOptions(include_columns=list(kinds), column_types={c: types[k] for c, k in kinds.items()},
+                                  null_values=[], strings_can_be_null=False,
+                                  quoted_strings_can_be_null=False)       # a blank or "n/a" is not a number
+    parts: dict[str, list] = {c: [] for c in kinds}
+    names: dict[str, dict[str, int]] = {c: {} for c in kinds if kinds[c] == "text"}
+    wanted = None if units is None else {u.strip() for u in units}
+    rows = 0
+    try:
+        reader = pcsv.open_csv(path, read_options=pcsv.ReadOptions(block_size=BLOCK_BYTES, use_threads=False),
+                               parse_options=pcsv.ParseOptions(delimiter=delimiter), convert_options=convert)
+        for batch in reader:
+            arrays = {c: batch.column(i) for i, c in enumerate(batch.schema.names)}
+            keep = None
+            if unit_column is not None:
+                dictionary = arrays[unit_column].dictionary.to_pylist()
+                hit = np.array([d.strip() in wanted or not d.strip() for d in dictionary] + [False])
+                keep = hit[_indices(arrays[unit_column], len(dictionary))]
+            rows += batch.num_rows
+            for c, array in arrays.items():
+                values = _codes(array, names[c]) if c in names else plain(array)
+                parts[c].append(values if keep is None else values[keep])
+    except pa.ArrowInvalid as err:
+        message = str(err)
+        if "conversion error" in message and "UTF8" not in message:
+            raise _NotANumber() from None
+        raise _Refused(message) from None
+    if rows == 0:
+        return None
+    out = {}
+    for c, chunks in parts.items():
+        joined = np.concatenate(chunks) if chunks else np.empty(0)
+        out[c] = Coded(np.array(list(names[c]), dtype=str), joined) if c in names else joined
+    return out
+
+
+NUMPY_TYPES = {"int8": np.int8, "int16": np.int16, "int32": np.int32, "int64": np.int64, "uint8": np.uint8,
+               "uint16": np.uint16, "uint32": np.uint32, "uint64": np.uint64, "float": np.float32,
+               "double": np.float64}
+
+
+def plain(array) -> np.ndarray:
+    """A null-free Arrow array of numbers as a numpy view of its data buffer (the buffer
+    protocol; Arrow's own ``to_numpy`` would import pandas, which ``figspec check`` does not)."""
+    dtype = np.dtype(NUMPY_TYPES[str(array.type)])
+    return np.frombuffer(array.buffers()[1], dtype=dtype, count=len(array), offset=array.offset * dtype.itemsize)
+
+
+def _indices(array, n: int) -> np.ndarray:
+    """A dictionary array's codes as numpy (a null, which the reader does not make, as ``n``)."""
+    return plain(array.indices.fill_null(n) if array.null_count else array.indices)
+
+
+def _codes(array, seen: dict[str, int]) -> np.ndarray:
+    """A batch's dictionary codes recoded into ``seen`` (the file's distinct values, in the order
+    met), so codes of every batch agree."""
+    dictionary = array.dictionary.to_pylist()
+    into = np.array([seen.setdefault(d, len(seen)) for d in dictionary] + [0], dtype=np.int32)
+    return into[_indices(array, len(dictionary))]
+
+
+def _whole_numbers(column: Coded):
+    """A coded key or selection column as integers when every distinct value is a whole number
+    that fits in 64 bits (trial numbers), else as text."""
+    texts = column.values
+    if texts.size and all(t.strip().lstrip("-").isdigit() for t in texts.tolist()):
+        as_int = [int(t) for t in texts.tolist()]
+        if all(-2 ** 63 <= v < 2 ** 63 for v in as_int):
+            return np.array(as_int, dtype=np.int64)[column.codes]
+    return column.decoded()
+
+
+def _check_lengths(columns: dict, path: Path, wanted: Plan) -> None:
+    """Names, keys and selection values longer than :data:`LONGEST_FIELD` characters are an error
+    (a text column is held at the width of its longest value, so one runaway field would cost
+    memory for every row)."""
+    for canonical, (column, loc) in wanted.items():
+        values = columns[column]
+        if isinstance(values, Coded) and values.values.size:
+            longest = int(np.char.str_len(values.values).max())
+            if longest > LONGEST_FIELD:
+                raise DataError(Problem(f"a field of column {column!r} in {path} is {longest} characters long; "
+                                        f"figspec reads names, keys and selection values of at most {LONGEST_FIELD}",
+                                        loc))
+
+
+def _refusal(path: Path, delimiter: str, header: list[str], message: str, file_loc: Loc) -> Problem:
+    """Arrow's refusal of a file as a located problem: the line of a ragged row (or of a quote
+    never closed), text that is not UTF-8, else Arrow's own first line."""
+    if "UTF8" in message:
+        return Problem(f"{path} {NOT_UTF8}", file_loc)
+    if "Expected" in message and "columns" in message:
+        ragged = ragged_row(path, delimiter, len(header), file_loc)
+        if ragged is not None:
+            line, fields = ragged
+            return Problem(f"line {line} of {path} has {fields} fields, the header {len(header)}: a missing "
+                           "or extra delimiter?", file_loc)
+    first = message.strip().splitlines()[0] if message.strip() else "unreadable"
+    return Problem(f"cannot read {path} as CSV: {first[:200]}", file_loc)

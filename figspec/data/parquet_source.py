@@ -1,6 +1,7 @@
-"""Parquet source (optional extra ``parquet``): spike and trial tables as Apache Parquet files,
-read with pyarrow: only the mapped columns, and for the spike table only the row groups that
-can hold the units the spec uses (a filter pushed down to the row-group statistics)."""
+"""Parquet source: spike and trial tables as Apache Parquet files, read through Arrow's dataset
+API (``pyarrow.dataset``): only the mapped columns, the unit filter pushed down to the row
+groups' statistics (row groups that cannot hold a unit the spec uses are never decoded), the
+unit column read as a dictionary array (each name once, a code per spike), batch by batch."""
 
 from __future__ import annotations
 
@@ -10,23 +11,35 @@ import numpy as np
 
 from figspec.data.columns import Plan, missing_columns
 from figspec.data.csv_source import check_file
-from figspec.data.table import Table
+from figspec.data.table import Coded, Table
 from figspec.errors import DataError, Loc, Problem
-from figspec.optional import require
 from figspec.spec.sources import ParquetSource
 
 
 def read(src: ParquetSource, folder: Path, loc: Loc, plans: tuple[Plan, Plan | None],
          units: set[str] | None = None) -> tuple[Table, Table | None]:
     spike_plan, trial_plan = plans
-    spikes = read_table(folder / src.spikes, spike_plan, loc + ("spikes",), loc,
-                        units if src.unit_name is None else None)
+    keep = units if (trial_plan is not None and src.unit_name is None) else None    # trials from spikes need all
+    spikes = read_table(folder / src.spikes, spike_plan, loc + ("spikes",), loc, keep)
     trials = read_table(folder / src.trials, trial_plan, loc + ("trials",), loc) if trial_plan and src.trials else None
     return spikes, trials
 
 
+def scanner(path: Path, columns: list[str], unit_column: str | None, units: list | None):
+    """Arrow's scanner of the file: the columns, the unit column as a dictionary array, and the
+    filter ``unit_column in units`` pushed down to the row groups."""
+    import pyarrow.dataset as ds
+
+    fmt = ds.ParquetFileFormat(read_options={"dictionary_columns": [unit_column] if unit_column else []})
+    dataset = ds.dataset(str(path), format=fmt)
+    where = None if units is None else ds.field(unit_column).isin(units)
+    return dataset.scanner(columns=columns, filter=where, use_threads=False)
+
+
 def read_table(path: Path, wanted: Plan, file_loc: Loc, src_loc: Loc, units: set[str] | None = None) -> Table:
-    pq = require("pyarrow.parquet", "format = 'parquet'", src_loc + ("format",))
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+
     check_file(path, file_loc)
     try:
         schema = pq.read_schema(path)
@@ -37,31 +50,41 @@ def read_table(path: Path, wanted: Plan, file_loc: Loc, src_loc: Loc, units: set
     if problems:
         raise DataError(problems)
     columns = sorted({c for c, _ in wanted.values()})
-    filters = None
-    if units is not None and "unit" in wanted:
-        column = wanted["unit"][0]
-        typed = [int(u) if schema.field(column).type.__str__().startswith(("int", "uint")) and u.lstrip("-").isdigit()
-                 else u for u in sorted(units)]
-        filters = [(column, "in", typed)]
-    table = pq.read_table(path, columns=columns, filters=filters)
-    if table.num_rows == 0 and filters is None:
+    unit_column = wanted["unit"][0] if "unit" in wanted else None
+    typed = None
+    if units is not None and unit_column is not None:
+        whole = pa.types.is_integer(schema.field(unit_column).type)
+        typed = sorted(int(u) if whole and u.strip().lstrip("-").isdigit() else u for u in units
+                       if not whole or u.strip().lstrip("-").isdigit())
+    try:
+        table = scanner(path, columns, unit_column, typed).to_table()
+    except (pa.ArrowException, OSError) as err:
+        raise DataError(Problem(f"cannot read {path} as Parquet ({type(err).__name__}: "
+                                f"{str(err).strip().splitlines()[0][:160] if str(err).strip() else 'unreadable'})",
+                                file_loc)) from None
+    if table.num_rows == 0 and typed is None:
         raise DataError(Problem(f"{path} has no rows", file_loc))
-    pa = require("pyarrow", "format = 'parquet'", src_loc + ("format",))
-    arrays = {column: _numpy(pa, table.column(column)) for column in columns}
+    arrays = {column: _numpy(pa, table.column(column), column == unit_column) for column in columns}
     out = Table({canonical: arrays[column] for canonical, (column, _) in wanted.items()})
-    if "unit" in out and out["unit"].dtype.kind in "biuf":
-        out = out.with_columns({"unit": out["unit"].astype(str)})   # unit names are text; keys keep their type
     return out
 
 
-def _numpy(pa, column) -> np.ndarray:
-    """A pyarrow column as numpy: dictionary-encoded (categorical) columns decoded, text as a
-    unicode array, nulls as NaN (numbers) or None (text, which the assembly reports)."""
-    if pa.types.is_dictionary(column.type):
-        column = column.cast(column.type.value_type)
+def _numpy(pa, column, is_unit: bool):
+    """A pyarrow column as numpy: the unit column as a :class:`Coded` column of text (numbers as
+    names), text as a unicode array through its dictionary (no Python string per row), nulls as
+    NaN (numbers) or empty text (which the assembly reports)."""
+    if is_unit or pa.types.is_string(column.type) or pa.types.is_large_string(column.type) \
+            or pa.types.is_dictionary(column.type):
+        if len(column) == 0:
+            coded = Coded(np.array([""]), np.empty(0, dtype=np.int64))
+        else:
+            if not pa.types.is_dictionary(column.type):
+                column = column.dictionary_encode()
+            column = column.unify_dictionaries().combine_chunks()
+            values = column.dictionary.to_pylist()
+            names = np.array(["" if v is None else str(v) for v in values] + [""], dtype=str)
+            coded = Coded(names, column.indices.fill_null(len(values)).to_numpy(zero_copy_only=False))
+        return coded if is_unit else coded.decoded()
     if pa.types.is_integer(column.type) and column.null_count:
         column = column.cast(pa.float64())
-    if (pa.types.is_string(column.type) or pa.types.is_large_string(column.type)) and not column.null_count:
-        coded = column.dictionary_encode().combine_chunks()       # text as codes: no Python string per row
-        return coded.dictionary.to_numpy(zero_copy_only=False).astype(str)[coded.indices.to_numpy()]
     return column.to_numpy()

@@ -22,7 +22,7 @@ from figspec.spec.sources import SourceBase, TableSource
 Frames = tuple[Table, "Table | None"]
 
 READERS: dict[str, Callable[..., Frames]] = {
-    "csv": lambda src, folder, loc, plans, units: csv_source.read(src, folder, loc, plans),
+    "csv": csv_source.read,
     "parquet": parquet_source.read,
     "nwb": nwb_source.read,
 }

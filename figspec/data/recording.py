@@ -10,6 +10,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass, replace
 
+import re
+
 import numpy as np
 
 from figspec.data.table import Table
@@ -40,6 +42,8 @@ class Recording:
     ticks_per_ms : the tick (1 µs unless the source declares another).
     removed : (what, how many) of everything left out on the way: trials removed by each
         selection rule, spikes outside every trial.
+    unread_units : units the source holds whose spikes were not read (the spec does not use
+        them; named in messages that list the units).
     """
 
     units: tuple[str, ...]
@@ -50,6 +54,12 @@ class Recording:
     ticks: np.ndarray
     ticks_per_ms: int = 1000
     removed: tuple[tuple[str, int], ...] = ()
+    unread_units: tuple[str, ...] = ()
+
+    @property
+    def all_units(self) -> tuple[str, ...]:
+        """Every unit the source holds, read or not (for messages)."""
+        return tuple(sorted(set(self.units) | set(self.unread_units), key=natural_key))
 
     @property
     def n_pairs(self) -> int:
@@ -94,4 +104,9 @@ class Recording:
         return Recording(units=self.units, trials=self.trials.take(keep),
                          pair_unit=self.pair_unit[pair_keep], pair_trial=new_index[self.pair_trial[pair_keep]],
                          offsets=offsets, ticks=self.ticks[spike_keep], ticks_per_ms=self.ticks_per_ms,
-                         removed=self.removed + removed)
+                         removed=self.removed + removed, unread_units=self.unread_units)
+
+
+def natural_key(name: str) -> tuple:
+    """Sort 'u2' before 'u10'."""
+    return tuple((0, int(p), "") if p.isdigit() else (1, 0, p) for p in re.split(r"(\d+)", name))

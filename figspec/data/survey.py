@@ -109,7 +109,8 @@ def read_any(path: Path) -> Table:
     with open(path, "rb") as handle:
         magic = handle.read(8)
     if magic[:4] == b"PAR1":
-        pq = require("pyarrow.parquet", f"reading {path.name} (Parquet)")
+        import pyarrow.parquet as pq
+
         return Table(path, "parquet", pq.read_table(path).to_pandas())
     if magic.startswith(b"\x89HDF"):
         raise DataError(Problem(file=str(path), message="an HDF5 file: give an NWB file alone (figspec draft FILE.nwb)"))

@@ -2,7 +2,9 @@
 
 Reading and checking data needs no pandas (``figspec check`` starts without it): sources return
 :class:`Table` objects and the assembly works on their columns with numpy. ``to_frame`` gives a
-pandas DataFrame where the computed tables want one. Text columns are numpy unicode arrays.
+pandas DataFrame where the computed tables want one. Text columns are numpy unicode arrays, or
+:class:`Coded` columns (distinct values and one code per row, as Arrow's dictionary arrays hold
+them), so a unit name per spike costs a small integer, not its characters.
 """
 
 from __future__ import annotations
@@ -10,6 +12,32 @@ from __future__ import annotations
 from typing import Iterator, Mapping
 
 import numpy as np
+
+
+class Coded:
+    """A column held as its distinct ``values`` and one integer code per row into them (an Arrow
+    dictionary array's layout). ``decoded()`` gives the plain array; the assembly uses the codes."""
+
+    __slots__ = ("values", "codes", "size")
+
+    def __init__(self, values, codes):
+        self.values = np.asarray(values)
+        self.codes = np.asarray(codes)
+        self.size = self.codes.size
+
+    def decoded(self) -> np.ndarray:
+        return self.values[self.codes]
+
+    def take(self, rows) -> "Coded":
+        return Coded(self.values, self.codes[rows])
+
+
+def coded(column) -> tuple[np.ndarray, np.ndarray]:
+    """(distinct values, each row's code into them) of a column, plain or :class:`Coded`; the
+    values of a plain column come sorted (:func:`factorize`)."""
+    if isinstance(column, Coded):
+        return column.values, column.codes
+    return factorize(column)
 
 
 class Table:
@@ -36,6 +64,11 @@ class Table:
         return cls({name: data[name] for name in data.columns}, rows=len(data))
 
     def __getitem__(self, name: str) -> np.ndarray:
+        column = self._columns[name]
+        return column.decoded() if isinstance(column, Coded) else column
+
+    def raw(self, name: str):
+        """The column as held: a numpy array or a :class:`Coded` column (not decoded)."""
         return self._columns[name]
 
     def __contains__(self, name: object) -> bool:
@@ -58,7 +91,8 @@ class Table:
         """The rows ``rows`` picks (a boolean mask or row indices), in that order."""
         rows = np.asarray(rows)
         n = int(np.count_nonzero(rows)) if rows.dtype == bool else rows.size
-        return Table({name: values[rows] for name, values in self._columns.items()}, rows=n)
+        return Table({name: values.take(rows) if isinstance(values, Coded) else values[rows]
+                      for name, values in self._columns.items()}, rows=n)
 
     def select(self, names) -> "Table":
         return Table({name: self._columns[name] for name in names}, rows=self._rows)
@@ -74,7 +108,7 @@ class Table:
         """The table as a pandas DataFrame (pandas imported here, on first use)."""
         import pandas as pd
 
-        return pd.DataFrame({name: values for name, values in self._columns.items()}, index=pd.RangeIndex(self._rows))
+        return pd.DataFrame({name: self[name] for name in self._columns}, index=pd.RangeIndex(self._rows))
 
     @staticmethod
     def concat(tables: list["Table"]) -> "Table":
@@ -94,6 +128,8 @@ def column_array(values) -> np.ndarray:
     """``values`` as a 1-D numpy array. A pandas Series of text (or of categories) is taken
     through its own ``factorize``, so its rows become a unicode array without a Python string
     per row; other Series through ``to_numpy``."""
+    if isinstance(values, Coded):
+        return values
     if hasattr(values, "to_numpy") and not isinstance(values, np.ndarray):
         dtype = getattr(values, "dtype", None)
         if hasattr(values, "factorize") and (not isinstance(dtype, np.dtype) or dtype == object):

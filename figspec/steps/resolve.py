@@ -72,7 +72,7 @@ def resolve(spec: LoadedSpec, style: str | None = None, frames: dict | None = No
                if not any(name in rec.units or name in {u.split("/")[-1] for u in rec.units} for rec in recordings.values())]
     if unknown:
         raise spec.error([Problem(f"no unit of this name in any source (units: "
-                                  f"{', '.join(sorted({u for r in recordings.values() for u in r.units}))})",
+                                  f"{', '.join(sorted({u for r in recordings.values() for u in r.all_units}))})",
                                   ("units", "names", name), toml_text(name)) for name in unknown], DataError)
     done = [complete_panel(spec, recordings, i) for i in range(len(spec.model.panels))]
     problems = [p for _, _, found in done for p in found]
@@ -214,8 +214,8 @@ def _unit_name(name: str, rec: Recording, recordings: dict, src, pooled: bool, l
                                   loc, toml_text(name))]
     elif name in rec.units:
         return name, []
-    close = difflib.get_close_matches(name, rec.units, n=1)
-    hint = f"; did you mean {close[0]!r}?" if close else f"; units: {', '.join(rec.units)}"
+    close = difflib.get_close_matches(name, rec.all_units, n=1)
+    hint = f"; did you mean {close[0]!r}?" if close else f"; units: {', '.join(rec.all_units)}"
     return None, [Problem(f"no such unit in source {src!r}{hint}", loc, toml_text(name))]
 
 
