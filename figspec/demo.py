@@ -10,7 +10,9 @@ Besides ``spikes.csv`` and ``trials.csv`` (session clock, one trial number per t
 recording is written as a lab's other layouts and formats would hold it: ``sorted_spikes.csv``
 (a spike sorter's output: unit and session time, no trial column), ``level_spikes.csv`` and
 ``level_trials.csv`` (trial numbers restarting within each level, times in ms from each trial's
-start), ``spikes.parquet``/``trials.parquet`` and ``session.nwb``; ``day2_*.csv`` is a second
+start), ``spikes.parquet``/``trials.parquet``, ``session.nwb`` and ``probe_sorted/`` (a spike
+sorter's output folder: sample indices at 30 kHz, unit ids, and a per-unit table labelling the
+three units good beside a multi-unit cluster and a busy noise cluster); ``day2_*.csv`` is a second
 session of the same model from the next seed (for pooling sessions). ``pressure_trials.csv`` is
 the trial table with the level as sound pressure in mPa, as a rig's calibration might give it
 (20 µPa x 10^(dB/20), to two significant digits), where the lowest level is played as silence (0 mPa), for a log level axis
@@ -134,6 +136,33 @@ def pressure_trials(trials: pd.DataFrame) -> pd.DataFrame:
     return out
 
 
+SAMPLING_RATE_HZ = 30_000
+SORTER_IDS = {"u1": 3, "u2": 7, "u3": 12}                  # the sorter's cluster ids of the three units
+SORTER_TABLE = ((0, "noise", 1240.0, 0.41), (3, "good", 420.0, 0.97), (5, "mua", 610.0, 0.62),
+                (7, "good", 380.0, 0.93), (12, "good", 455.0, 0.95))   # id, label, depth (µm), isolation
+
+
+def write_sorter_folder(folder: Path, spikes: pd.DataFrame, trials: pd.DataFrame, seed: int) -> int:
+    """The recording as a spike sorter's output folder: ``spike_samples.npy`` (int64 sample
+    indices at 30 kHz, time order), ``spike_units.npy`` (int32 cluster ids) and ``units.tsv``.
+    Besides the three units: a multi-unit cluster (the three units' spikes, half of them,
+    jittered) and a noise cluster firing at 60 spikes/s throughout, the busiest of all."""
+    rng = np.random.default_rng(seed + 7)                   # its own draws: the other files stay as they were
+    end_s = float(trials["stop_s"].max())
+    mua = spikes.sample(frac=0.5, random_state=seed % (2 ** 32))["time_s"].to_numpy() + rng.normal(0, 2e-4, len(spikes) // 2)
+    noise = rng.uniform(0.0, end_s, int(60 * end_s))
+    times = np.concatenate([spikes["time_s"].to_numpy(), np.clip(mua, 0, end_s), noise])
+    ids = np.concatenate([spikes["unit"].map(SORTER_IDS).to_numpy(), np.full(mua.size, 5), np.zeros(noise.size)])
+    samples = np.rint(times * SAMPLING_RATE_HZ).astype(np.int64)
+    order = np.lexsort((ids, samples))
+    folder.mkdir(parents=True, exist_ok=True)
+    np.save(folder / "spike_samples.npy", samples[order])
+    np.save(folder / "spike_units.npy", ids[order].astype(np.int32))
+    (folder / "units.tsv").write_text("unit_id\tlabel\tdepth_um\tisolation\n" + "".join(
+        f"{i}\t{label}\t{depth:g}\t{iso:g}\n" for i, label, depth, iso in SORTER_TABLE))
+    return int(samples.size)
+
+
 def write_all(folder: Path, seed: int = SEED) -> dict[str, int]:
     """Write every demo file into ``folder``: the CSV recording, its Parquet copy, the spike
     sorter's session-clock table without trial column, the per-level trial numbering and the
@@ -152,7 +181,9 @@ def write_all(folder: Path, seed: int = SEED) -> dict[str, int]:
     spikes.to_parquet(folder / "spikes.parquet", index=False, row_group_size=1000)
     trials.to_parquet(folder / "trials.parquet", index=False)
     write_nwb(folder / "session.nwb", spikes, trials)
-    return {name: len(frame) for name, frame in csv.items()}
+    rows = {name: len(frame) for name, frame in csv.items()}
+    rows["probe_sorted"] = write_sorter_folder(folder / "probe_sorted", spikes, trials, seed)
+    return rows
 
 
 def main(argv: list[str] | None = None) -> None:

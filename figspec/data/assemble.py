@@ -30,12 +30,11 @@ from figspec.data.keep import select_trials, shown
 from figspec.data.recording import Recording, natural_key
 from figspec.data.table import (Coded, Table, coded, count_missing, factorize, first_of_each, index_in, is_missing,
                                 lookup, missing, numbers, row_codes, text)
+from figspec.data.ticks import finite_numbers, to_ticks
 from figspec.data.trials_from_spikes import TrialCounts, trials_from_spikes
 from figspec.errors import DataError, FigspecWarning, Loc, Problem
 from figspec.spec.selection import TrialSelection
 
-SECONDS_PER = {"s": 1.0, "ms": 1e-3}
-LARGEST_TICK = 2 ** 62          # times beyond this many ticks cannot be held exactly
 
 __all__ = ["Layout", "TrialCounts", "assemble"]
 
@@ -47,6 +46,8 @@ class Layout:
     where: str
     locs: dict[str, Loc]
     time_unit: str = "s"
+    trial_time_unit: str | None = None   # None: that of the spikes
+    sampling_rate_hz: float | None = None
     clock: str = "aligned"
     align: str = "onset"                 # "onset" or an event name
     assign: str = "by_key"
@@ -64,27 +65,6 @@ class Layout:
     def align_column(self) -> str:
         return "onset" if self.align == "onset" else f"event:{self.align}"
 
-
-def to_ticks(values: np.ndarray, layout: Layout, what: str, name: str) -> np.ndarray:
-    """Times in the layout's time unit as int64 ticks; every value must be a finite number."""
-    loc = layout.locs.get(name, ())
-    values = _numbers(values, what, loc, layout.where)
-    scaled = values * (layout.ticks_per_second * SECONDS_PER[layout.time_unit])
-    largest = max(abs(float(scaled.min())), abs(float(scaled.max()))) if scaled.size else 0.0
-    if largest >= LARGEST_TICK:
-        raise DataError(Problem(f"{what} are too large to hold in {1e6 / layout.ticks_per_second:g}-µs ticks "
-                                f"(is time_unit = {layout.time_unit!r} right?)", loc, shown(values[np.argmax(np.abs(scaled))])))
-    return np.rint(scaled, out=scaled).astype(np.int64)
-
-
-def _numbers(values: np.ndarray, what: str, loc: Loc, where: str) -> np.ndarray:
-    out = numbers(values)
-    bad = ~np.isfinite(out)
-    if bad.any():
-        first = np.asarray(values)[np.argmax(bad)]
-        raise DataError(Problem(f"{what} must be finite numbers in every row of {where}; {int(bad.sum())} rows "
-                                "are not", loc, "an empty field" if is_missing(first) else shown(first)))
-    return out
 
 
 def _key_columns(table: Table) -> list[str]:
@@ -133,7 +113,7 @@ def assemble(spikes, trials, layout: Layout) -> Recording:
     spikes = spikes.select([c for c in spikes if c != "unit"])          # (large arrays are let go when done)
     spike_t = to_ticks(spikes["time"], layout, "spike times", "time")
     if trials is None:
-        spikes = spikes.with_columns({"level": _numbers(spikes["level"], "levels", layout.locs.get("level", ()),
+        spikes = spikes.with_columns({"level": finite_numbers(spikes["level"], "levels", layout.locs.get("level", ()),
                                                         layout.where)})
         trials = trials_from_spikes(spikes, _key_columns(spikes), layout.counts, layout.where)
     keys = _key_columns(trials)
@@ -272,7 +252,7 @@ def trial_table(trials: Table, keys: list[str], layout: Layout) -> tuple[Table, 
     """The trial table in presentation order with its display columns, and its event times in
     ticks (``align``, and ``start``/``stop`` on the data's clock when given)."""
     locs, where = layout.locs, layout.where
-    level = _numbers(trials["level"], "levels", locs.get("level", ()), where)
+    level = finite_numbers(trials["level"], "levels", locs.get("level", ()), where)
     ticks = {name: to_ticks(trials[name], layout, f"{name} times", name)
              for name in ("onset", "offset", "start", "stop") if name in trials}
     ticks.update({c: to_ticks(trials[c], layout, f"{c[6:]} times", c) for c in trials if c.startswith("event:")})

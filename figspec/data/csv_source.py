@@ -22,7 +22,7 @@ from figspec.errors import DataError, Loc, Problem
 from figspec.spec.sources import CsvSource
 
 DELIMITER_NAMES = {",": "comma", ";": "semicolon", "\t": "tab", "|": "bar", " ": "space"}
-BLOCK_BYTES = 8 << 20           # Arrow's block: one batch of rows at a time
+BLOCK_BYTES = 1 << 20
 LONGEST_FIELD = 1000            # characters in a unit name, trial key or selection value
 
 

@@ -10,14 +10,14 @@ from __future__ import annotations
 from pathlib import Path
 from typing import Callable
 
-from figspec.data import csv_source, nwb_source, parquet_source
+from figspec.data import csv_source, nwb_source, parquet_source, sample_arrays, unit_table
 from figspec.data.assemble import Layout, TrialCounts, assemble
-from figspec.data.columns import Plan, column_plan, key_paths, rename
+from figspec.data.columns import Plan, column_plan, key_paths, rename, trial_plan
 from figspec.data.recording import Recording
 from figspec.data.table import Table
 from figspec.errors import Loc
 from figspec.spec.selection import TrialSelection
-from figspec.spec.sources import SourceBase, TableSource
+from figspec.spec.sources import SampleArraysSource, SourceBase, TableSource
 
 Frames = tuple[Table, "Table | None"]
 
@@ -25,6 +25,7 @@ READERS: dict[str, Callable[..., Frames]] = {
     "csv": csv_source.read,
     "parquet": parquet_source.read,
     "nwb": nwb_source.read,
+    "sample_arrays": sample_arrays.read,
 }
 
 
@@ -37,11 +38,14 @@ def widened(src: SourceBase, where_columns: set[str]) -> SourceBase:
 
 def plans(src: SourceBase, loc: Loc) -> tuple[Plan, Plan | None]:
     """The columns a table source reads (NWB plans its own)."""
+    if isinstance(src, SampleArraysSource):
+        return {}, trial_plan(src.trial_columns, src.keep.where, loc, list(src.trial_columns.trial))
     return column_plan(src, loc) if isinstance(src, TableSource) else ({}, None)
 
 
 def layout(src: SourceBase, where: str, locs: dict, loc: Loc) -> Layout:
-    return Layout(where=where, locs=locs, time_unit=src.time_unit, clock=src.time_clock, align=src.align,
+    return Layout(where=where, locs=locs, time_unit=src.time_unit, trial_time_unit=src.event_time_unit,
+                  sampling_rate_hz=src.sampling_rate_hz, clock=src.time_clock, align=src.align,
                   assign=getattr(src, "assign_spikes", "by_key"), ticks_per_second=src.ticks_per_second,
                   extent_ms=src.extent_ms, keep=src.keep, keep_loc=loc + ("keep",),
                   counts=TrialCounts(getattr(src, "trials_per_level", None), loc + ("trials_per_level",)))
@@ -64,6 +68,13 @@ def load_source(src: SourceBase, folder: Path, loc: Loc, units: set[str] | None 
     """
     reading = widened(src, set(where_columns))
     planned = plans(reading, loc)
+    table = None
+    if src.unit_table is not None:
+        path = folder / src.unit_files()["units"]
+        table = unit_table.read_unit_table(path, src.unit_table.id, loc + ("unit_table",))
+        if src.keep_units:
+            candidates = set(table[src.unit_table.id][unit_table.rows_meeting(table, src.keep_units, path, loc)].tolist())
+            units = candidates if units is None else {u for u in units if u.strip() in candidates}
     if frames is not None:
         spikes = rename(frames[0], planned[0], "the spike table")
         trials = None if frames[1] is None or planned[1] is None else rename(frames[1], planned[1], "the trial table")
@@ -71,5 +82,11 @@ def load_source(src: SourceBase, folder: Path, loc: Loc, units: set[str] | None 
         spikes, trials = READERS[src.format](reading, folder, loc, planned, units)
     if getattr(src, "unit_name", None) is not None:
         spikes = spikes.with_columns({"unit": src.unit_name})
-    where = " and ".join(str(folder / path) for path in src.files().values()) if frames is None else "the data frames"
-    return assemble(spikes, trials, layout(src, where, key_paths(src, loc, planned), loc))
+    where = " and ".join(str(folder / path) for role, path in src.files().items() if role != "units") \
+        if frames is None else "the data frames"
+    rec = assemble(spikes, trials, layout(src, where, key_paths(src, loc, planned), loc))
+    if table is not None and src.keep_units:
+        choice = unit_table.choose(table, src.unit_table.id, src.keep_units, list(rec.all_units),
+                                   folder / src.unit_files()["units"], loc)
+        rec = rec.keep_units(choice.kept, choice)
+    return rec

@@ -43,7 +43,9 @@ class Recording:
     removed : (what, how many) of everything left out on the way: trials removed by each
         selection rule, spikes outside every trial.
     unread_units : units the source holds whose spikes were not read (the spec does not use
-        them; named in messages that list the units).
+        them, or a per-unit table's rule left them out; named in messages that list the units).
+    unit_choice : what chose the units, when a per-unit table did
+        (:class:`figspec.data.unit_table.UnitChoice`), else None.
     """
 
     units: tuple[str, ...]
@@ -55,6 +57,7 @@ class Recording:
     ticks_per_ms: int = 1000
     removed: tuple[tuple[str, int], ...] = ()
     unread_units: tuple[str, ...] = ()
+    unit_choice: object = None
 
     @property
     def all_units(self) -> tuple[str, ...]:
@@ -104,7 +107,24 @@ class Recording:
         return Recording(units=self.units, trials=self.trials.take(keep),
                          pair_unit=self.pair_unit[pair_keep], pair_trial=new_index[self.pair_trial[pair_keep]],
                          offsets=offsets, ticks=self.ticks[spike_keep], ticks_per_ms=self.ticks_per_ms,
-                         removed=self.removed + removed, unread_units=self.unread_units)
+                         removed=self.removed + removed, unread_units=self.unread_units,
+                         unit_choice=self.unit_choice)
+
+    def keep_units(self, names, choice=None) -> "Recording":
+        """The recording with only the units ``names`` (those not kept join ``unread_units``)."""
+        kept = [u for u in self.units if u in set(names)]
+        if len(kept) == len(self.units):
+            return replace(self, unit_choice=choice)
+        index = np.array([u in set(kept) for u in self.units])
+        pair_keep = index[self.pair_unit]
+        counts = np.diff(self.offsets)[pair_keep]
+        offsets = np.zeros(counts.size + 1, dtype=np.int64)
+        np.cumsum(counts, out=offsets[1:])
+        return replace(self, units=tuple(kept), pair_unit=(np.cumsum(index) - 1)[self.pair_unit[pair_keep]],
+                       pair_trial=self.pair_trial[pair_keep], offsets=offsets,
+                       ticks=self.ticks[np.repeat(pair_keep, np.diff(self.offsets))],
+                       unread_units=tuple(sorted(set(self.unread_units) | (set(self.units) - set(kept)),
+                                                 key=natural_key)), unit_choice=choice)
 
 
 def natural_key(name: str) -> tuple:

@@ -22,7 +22,7 @@ class PanelBase(Frozen):
     name: Name
     source: str | Annotated[list[str], Field(min_length=2)] | None = None
     unit: str | None = None
-    units: list[str] | None = Field(default=None, min_length=1)
+    units: Annotated[list[str], Field(min_length=1)] | Literal["all"] | None = None
     levels: Annotated[list[Level], Field(min_length=1, max_length=200)] | None = None
     cell: GridCell | None = None
     span: GridCell = (1, 1)
@@ -50,7 +50,10 @@ class PanelBase(Frozen):
         return None
 
     def unit_names(self) -> list[str]:
-        """The units the panel shows: its ``units``, else its one ``unit``."""
+        """The units the panel shows: its ``units``, else its one ``unit`` (before the resolve
+        step, ``units = "all"`` names none: every unit its source keeps)."""
+        if self.units == "all":
+            return []
         return list(self.units) if self.units else [self.unit]
 
     def windows(self) -> dict[str, tuple[float, float]]:
@@ -62,7 +65,7 @@ class TimePanel(PanelBase):
     """Panels with time on x, repeated per level (or per unit) down rows or across columns, or
     overlaid in one axes. Scale bars can replace the axes."""
 
-    units: list[str] | None = Field(default=None, min_length=2)
+    units: Annotated[list[str], Field(min_length=2)] | Literal["all"] | None = None
     repeat: Literal["level", "unit"] = "level"
     arrange: Literal["rows", "columns", "overlay"] = "rows"
     window_ms: WindowMs = (-50.0, 150.0)
@@ -88,7 +91,7 @@ class TimePanel(PanelBase):
 
     def stimulus_units(self) -> list[str]:
         """Whose trials give the stimulus windows: each repeated unit, else the first unit."""
-        return list(self.units) if self.units and self.repeat == "unit" else self.unit_names()[:1]
+        return self.unit_names() if self.units and self.repeat == "unit" else self.unit_names()[:1]
 
 
 class SummaryPanel(PanelBase):

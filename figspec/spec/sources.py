@@ -14,7 +14,7 @@ from typing import Annotated, Any, Literal, Union
 from pydantic import AfterValidator, Discriminator, Field, Tag, model_validator
 
 from figspec.spec.fields import Frozen, Name, WindowMs
-from figspec.spec.selection import TrialSelection
+from figspec.spec.selection import Condition, TrialSelection
 
 DEFAULT_FORMAT = "csv"
 Columns = Annotated[list[Annotated[str, Field(min_length=1)]], Field(min_length=1, max_length=6)]
@@ -57,23 +57,53 @@ class TrialColumns(Frozen):
     unit: str | None = None
 
 
+TimeUnit = Literal["s", "ms", "samples"]
+SamplingRate = Annotated[float, Field(gt=0, le=1e7, description="samples per second of the recording (Hz)")]
+
+
+class UnitTable(Frozen):
+    """A table with one row per unit (a spike sorter's labels and metrics): ``file`` (CSV, a
+    ``.tsv`` file tab-separated, or Parquet) and ``id``, its column of unit ids, matched to the
+    spike table's unit names."""
+
+    file: str
+    id: str = "unit_id"
+
+
 class SourceBase(Frozen):
     """Keys every format has: the clock and unit of its times, alignment, recorded extent,
-    time resolution, and which trials to keep."""
+    time resolution, which trials to keep, and which units (by a per-unit table)."""
 
-    time_unit: Literal["s", "ms"] = "s"
+    time_unit: TimeUnit = "s"
+    trial_time_unit: TimeUnit | None = None
+    sampling_rate_hz: SamplingRate | None = None
     clock: Literal["aligned", "trial", "session"] | None = None
     align: str = "onset"
     extent_ms: WindowMs | None = None
     tick_us: Annotated[float, Field(ge=0.001, le=1000)] = 1.0
     keep: TrialSelection = TrialSelection()
+    unit_table: UnitTable | None = None
+    keep_units: dict[str, Condition] = Field(default_factory=dict)
 
     @model_validator(mode="after")
     def _whole_ticks(self) -> "SourceBase":
         per_ms = 1000.0 / self.tick_us
         if abs(per_ms - round(per_ms)) > 1e-9:
             raise ValueError(f"tick_us must divide 1 ms into whole ticks (got {self.tick_us:g} µs)")
+        if "samples" in (self.time_unit, self.trial_time_unit) and self.sampling_rate_hz is None:
+            raise ValueError("times in samples need the recording's sampling rate: set sampling_rate_hz")
+        if self.keep_units and self.unit_table is None:
+            raise ValueError("keep_units chooses units by the columns of a per-unit table: set unit_table "
+                             "(e.g. unit_table = { file = \"units.tsv\", id = \"unit_id\" })")
         return self
+
+    @property
+    def event_time_unit(self) -> str:
+        """The unit of the trial table's times: ``trial_time_unit``, else that of the spikes."""
+        return self.trial_time_unit or self.time_unit
+
+    def unit_files(self) -> dict[str, str]:
+        return {"units": self.unit_table.file} if self.unit_table else {}
 
     @property
     def ticks_per_second(self) -> int:
@@ -136,7 +166,8 @@ class TableSource(SourceBase):
 
     def files(self) -> dict[str, str]:
         """The files this source reads, by role (paths as written, relative to the spec)."""
-        return {role: path for role, path in (("spikes", self.spikes), ("trials", self.trials)) if path}
+        files = {role: path for role, path in (("spikes", self.spikes), ("trials", self.trials)) if path}
+        return {**files, **self.unit_files()}
 
     @property
     def has_stimulus_window(self) -> bool:
@@ -176,6 +207,7 @@ class NwbSource(SourceBase):
     trial_columns: NwbColumns = NwbColumns()
     clock: Literal["session"] = "session"
     time_unit: Literal["s"] = "s"
+    trial_time_unit: Literal["s"] | None = None
     assign_spikes: Literal["by_time"] = "by_time"
 
     @model_validator(mode="after")
@@ -188,14 +220,69 @@ class NwbSource(SourceBase):
         return self
 
     def files(self) -> dict[str, str]:
-        return {"nwb": self.file}
+        return {"nwb": self.file, **self.unit_files()}
 
     @property
     def has_stimulus_window(self) -> bool:
         return None not in (self.trial_columns.onset, self.trial_columns.offset)
 
 
-SOURCE_MODELS = (CsvSource, ParquetSource, NwbSource)
+class SampleArraysSource(SourceBase):
+    """``format = "sample_arrays"``: a spike sorter's output folder. ``folder`` holds
+    ``spike_samples`` (a ``.npy`` array of spike times as whole sample indices on the session
+    clock) and ``spike_units`` (a parallel ``.npy`` array of unit ids), optionally a per-unit
+    table (``unit_table``, its file relative to the folder); ``sampling_rate_hz`` converts
+    samples to time. Trials come from a trial table (``trials``, relative to the spec, times in
+    ``trial_time_unit``: s unless said) and spikes are assigned to trials by time."""
+
+    format: Literal["sample_arrays"]
+    folder: str
+    spike_samples: str = "spike_samples.npy"
+    spike_units: str = "spike_units.npy"
+    sampling_rate_hz: SamplingRate
+    trials: str
+    trial_columns: TrialColumns = TrialColumns()
+    delimiter: Annotated[str, Field(min_length=1, max_length=1)] = ","
+    time_unit: Literal["samples"] = "samples"
+    trial_time_unit: TimeUnit = "s"
+    clock: Literal["session"] = "session"
+
+    @model_validator(mode="after")
+    def _trials_on_the_session_clock(self) -> "SampleArraysSource":
+        tc = self.trial_columns
+        if tc.start is None or tc.stop is None:
+            raise ValueError("spikes of a sorter's folder are assigned to trials by time: set trial_columns.start "
+                             "and trial_columns.stop (each trial's start and stop on the session clock)")
+        if self.align == "onset" and tc.onset is None:
+            raise ValueError("set trial_columns.onset (the trial table's stimulus onset column) or align to one "
+                             "of trial_columns.events")
+        if self.align != "onset" and self.align not in tc.events:
+            raise ValueError("align names an event: 'onset' or one of trial_columns.events")
+        return self
+
+    @property
+    def assign_spikes(self) -> str:
+        return "by_time"
+
+    def path_in_folder(self, name: str) -> str:
+        return f"{self.folder.rstrip('/')}/{name}"
+
+    def files(self) -> dict[str, str]:
+        files = {"spike_samples": self.path_in_folder(self.spike_samples),
+                 "spike_units": self.path_in_folder(self.spike_units), "trials": self.trials}
+        if self.unit_table:
+            files["units"] = self.path_in_folder(self.unit_table.file)
+        return files
+
+    def unit_files(self) -> dict[str, str]:
+        return {"units": self.path_in_folder(self.unit_table.file)} if self.unit_table else {}
+
+    @property
+    def has_stimulus_window(self) -> bool:
+        return None not in (self.trial_columns.onset, self.trial_columns.offset)
+
+
+SOURCE_MODELS = (CsvSource, ParquetSource, NwbSource, SampleArraysSource)
 
 
 def _format_of(value: Any) -> str:

@@ -134,7 +134,7 @@ def load_recordings(spec: LoadedSpec, frames: dict) -> dict[str, Recording]:
     recordings = {}
     for name, src in model.sources.items():
         users = [p for p in model.panels if name in _sources_of(model, p)]
-        units = None if any(p.unit is None and p.units is None for p in users) else \
+        units = None if any(p.unit is None and p.units in (None, "all") for p in users) else \
             {u.split("/", 1)[-1] for p in users for u in p.unit_names()}
         where = {c for p in users for c in p.keep.where}
         try:
@@ -188,6 +188,8 @@ def _panel_recording(panel: PanelBase, recordings: dict[str, Recording], src) ->
 def _units(panel: PanelBase, rec: Recording, recordings: dict, src) -> tuple:
     """(unit, units, problems) with names as the panel's recording knows them."""
     pooled = isinstance(src, list)
+    if panel.units == "all":
+        return None, list(rec.units), []
     if panel.units is not None:
         names, problems = [], []
         for j, name in enumerate(panel.units):
@@ -214,6 +216,10 @@ def _unit_name(name: str, rec: Recording, recordings: dict, src, pooled: bool, l
                                   loc, toml_text(name))]
     elif name in rec.units:
         return name, []
+    choice = rec.unit_choice
+    if choice is not None and name in rec.all_units:
+        return None, [Problem(f"unit {name!r} is left out by the unit rule of source {src!r} ({choice.rule}); "
+                              f"units kept: {', '.join(choice.kept[:12])}", loc, toml_text(name))]
     close = difflib.get_close_matches(name, rec.all_units, n=1)
     hint = f"; did you mean {close[0]!r}?" if close else f"; units: {', '.join(rec.all_units)}"
     return None, [Problem(f"no such unit in source {src!r}{hint}", loc, toml_text(name))]

@@ -53,7 +53,13 @@ def legend(resolved: Resolved, tables: Tables) -> str:
         about = About(letters.get(panel.name, panel.name), declared, model.levels.unit, model.levels.scale,
                       model.units.label)
         sentences.append(kind_of(panel).legend(panel, tables.panels[panel.name], about))
+    sentences += [choice.sentence(name) for name, choice in unit_choices(resolved).items()]
     return legend_text(model.figure.title, sentences)
+
+
+def unit_choices(resolved: Resolved) -> dict:
+    """Per source whose units a per-unit table chose: the choice (rule, table, units kept)."""
+    return {name: rec.unit_choice for name, rec in resolved.recordings.items() if rec.unit_choice is not None}
 
 
 def removed(resolved: Resolved) -> dict[str, list]:
@@ -90,6 +96,8 @@ def save(resolved: Resolved, tables: Tables, fig: "Figure", outdir: str | Path,
              "formats": sorted(formats or model.figure.formats)}
     payload[data_dir / "manifest.json"] = manifest(sources, outputs,
                                                    {**parameters(model, resolved.panels, resolved.style),
-                                                    "removed": removed(resolved)}, build)
+                                                    "removed": removed(resolved),
+                                                    "unit_choice": {name: choice.record() for name, choice
+                                                                    in unit_choices(resolved).items()}}, build)
     owned = tuple(f"{glob.escape(stem)}{tail}" for tail in (".svg", ".pdf", ".png", "_data/*"))
     return write_set(outdir, stem, payload, owned)

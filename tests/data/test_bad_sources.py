@@ -97,7 +97,7 @@ def test_an_onset_column_without_a_clock_asks_which(tmp_path):
 
 def test_an_unknown_format_suggests_the_known_ones(tmp_path):
     [line] = problems(tmp_path, MINIMAL_SPEC.replace('clock = "session"', 'clock = "session"\nformat = "parqet"'), SpecError)
-    assert "sources.demo.format: format must be one of 'csv', 'parquet', 'nwb'; did you mean 'parquet'?" in line
+    assert "sources.demo.format: format must be one of 'csv', 'parquet', 'nwb', 'sample_arrays'; did you mean 'parquet'?" in line
 
 
 def test_nwb_files_without_a_units_or_trials_table(tmp_path):
