@@ -48,6 +48,9 @@ def read(src: SampleArraysSource, folder: Path, loc: Loc, plans: tuple[Plan, Pla
 def load_array(path: Path, file_loc: Loc) -> np.ndarray:
     """A one-dimensional array from a ``.npy`` file, memory-mapped; anything else is a user error."""
     csv_source.check_file(path, file_loc)
+    with open(path, "rb") as handle:
+        if handle.read(6) != b"\x93NUMPY":
+            raise DataError(Problem(f"{path} is not a NumPy .npy array file (it does not begin as one)", file_loc))
     try:
         array = np.load(path, mmap_mode="r", allow_pickle=False)
     except (ValueError, OSError, EOFError) as err:
