@@ -14,6 +14,7 @@ from figspec.errors import DataError, Loc, Problem
 
 EXTRAS: dict[str, str] = {   # importable module -> the extra of pyproject.toml that installs it
     "pynwb": "nwb",
+    "h5py": "nwb",
     "distributed": "cluster",
     "watchfiles": "preview",
 }

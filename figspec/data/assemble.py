@@ -257,6 +257,9 @@ def trial_table(trials: Table, keys: list[str], layout: Layout) -> tuple[Table, 
              for name in ("onset", "offset", "start", "stop") if name in trials}
     ticks.update({c: to_ticks(trials[c], layout, f"{c[6:]} times", c) for c in trials if c.startswith("event:")})
     align = ticks.get(layout.align_column, np.zeros(len(trials), dtype=np.int64))
+    if layout.assign == "by_time" and "stop" not in ticks and layout.extent_ms is not None:
+        lo, hi = np.rint(np.asarray(layout.extent_ms) * layout.ticks_per_ms).astype(np.int64)
+        ticks["start"], ticks["stop"] = np.maximum(ticks.get("start", align + lo), align + lo), align + hi
     if "unit" in trials:
         trials = trials.with_columns({"unit": text(trials["unit"])})
     order = _presentation_order(trials, ticks, align, layout)

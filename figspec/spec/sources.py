@@ -137,9 +137,11 @@ class TableSource(SourceBase):
                              "set spike_columns.level")
         if self.trials is None and (self.clock not in (None, "aligned") or self.assign_spikes != "by_key"):
             raise ValueError(f"clock = {self.clock!r} needs a trial table (trials) with the trials' times")
-        if self.assign_spikes == "by_time" and (self.clock != "session" or tc.start is None or tc.stop is None):
-            raise ValueError("assign_spikes = 'by_time' needs clock = 'session' and trial_columns.start and "
-                             "trial_columns.stop (each trial's start and stop on the session clock)")
+        if self.assign_spikes == "by_time" and (self.clock != "session" or (
+                (tc.start is None or tc.stop is None) and self.extent_ms is None)):
+            raise ValueError("assign_spikes = 'by_time' needs clock = 'session' and either trial_columns.start and "
+                             "trial_columns.stop (each trial's start and stop on the session clock) or extent_ms "
+                             "(what was recorded of each trial around its alignment event)")
         if self.assign_spikes == "by_key" and self.trials is not None and \
                 len(self.spike_columns.trial) != len(tc.trial):
             raise ValueError(f"spike_columns.trial and trial_columns.trial name the same key: give both "
@@ -189,11 +191,16 @@ class ParquetSource(TableSource):
 
 
 class NwbColumns(Frozen):
-    """Columns of an NWB file's trials table (``start_time`` and ``stop_time`` are NWB's own)."""
+    """Columns of an NWB file's trials table: ``trial`` is the trial key (default: the table's
+    ids); ``start`` and ``stop`` each trial's recorded extent (NWB's own ``start_time`` and
+    ``stop_time``; ``stop = ""`` when the source's ``extent_ms`` says what was recorded)."""
 
+    trial: str | None = None
     level: str = "level"
     onset: str | None = None
     offset: str | None = None
+    start: str = "start_time"
+    stop: str = "stop_time"
     events: dict[Name, str] = Field(default_factory=dict)
 
 
@@ -217,6 +224,9 @@ class NwbSource(SourceBase):
                              "to one of trial_columns.events")
         if self.align != "onset" and self.align not in self.trial_columns.events:
             raise ValueError("align names an event: 'onset' or one of trial_columns.events")
+        if not self.trial_columns.stop and self.extent_ms is None:
+            raise ValueError("without a stop column (trial_columns.stop = \"\") set extent_ms: what was "
+                             "recorded of each trial around its alignment event")
         return self
 
     def files(self) -> dict[str, str]:
