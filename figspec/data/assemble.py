@@ -20,51 +20,22 @@ event) on a session clock, and the trial table's row order otherwise.
 from __future__ import annotations
 
 import re
-import warnings
-from dataclasses import dataclass, field
 
 import numpy as np
 
-from figspec.data.by_time import assign_by_time, check_every_unit_inside
+from figspec.data.by_time import assign_by_time
+from figspec.data.checks import check_durations, check_inside_extent, check_unit_names
 from figspec.data.keep import select_trials, shown
+from figspec.data.layout import Layout
 from figspec.data.recording import Recording, natural_key
-from figspec.data.table import (Coded, Table, coded, count_missing, factorize, first_of_each, index_in, is_missing,
-                                lookup, missing, numbers, row_codes, text)
+from figspec.data.table import (Coded, Table, coded, count_missing, factorize, first_of_each, index_in, lookup, missing,
+                                numbers, row_codes, text)
 from figspec.data.ticks import finite_numbers, to_ticks
+from figspec.data.trial_table import trial_table
 from figspec.data.trials_from_spikes import TrialCounts, trials_from_spikes
-from figspec.errors import DataError, FigspecWarning, Loc, Problem
-from figspec.spec.selection import TrialSelection
-
+from figspec.errors import DataError, Problem
 
 __all__ = ["Layout", "TrialCounts", "assemble"]
-
-
-@dataclass(frozen=True)
-class Layout:
-    """How a source's times and trials are laid out (from its spec), and where to point messages."""
-
-    where: str
-    locs: dict[str, Loc]
-    time_unit: str = "s"
-    trial_time_unit: str | None = None   # None: that of the spikes
-    sampling_rate_hz: float | None = None
-    clock: str = "aligned"
-    align: str = "onset"                 # "onset" or an event name
-    assign: str = "by_key"
-    ticks_per_second: int = 1_000_000
-    extent_ms: tuple[float, float] | None = None
-    keep: TrialSelection = field(default_factory=TrialSelection)
-    keep_loc: Loc = ()
-    counts: TrialCounts = field(default_factory=lambda: TrialCounts(None, ()))
-
-    @property
-    def ticks_per_ms(self) -> int:
-        return self.ticks_per_second // 1000
-
-    @property
-    def align_column(self) -> str:
-        return "onset" if self.align == "onset" else f"event:{self.align}"
-
 
 
 def _key_columns(table: Table) -> list[str]:
@@ -176,65 +147,6 @@ def unit_codes(values, layout: Layout) -> tuple[np.ndarray, np.ndarray, np.ndarr
     return names, (codes if np.array_equal(renamed, np.arange(distinct.size)) else renamed[codes]), unread
 
 
-def check_inside_extent(ticks: np.ndarray, table: Table, pair_trial: np.ndarray, pair: np.ndarray, layout: Layout,
-                        pair_unit: np.ndarray, units: list[str], chunk: int = 1 << 20) -> None:
-    """Spikes far outside their own trial's recorded extent mean the time unit or the clock is
-    wrong: an error when none is inside (in all, or of one unit), a warning when most are not.
-    Counted in chunks, so the check needs no full-size temporary arrays."""
-    lo = table["extent_lo_ms"].astype(float) * layout.ticks_per_ms
-    hi = table["extent_hi_ms"].astype(float) * layout.ticks_per_ms
-    if not (np.isfinite(lo).any() or np.isfinite(hi).any()):
-        return
-    outside = 0
-    total, inside = np.zeros(len(units), dtype=np.int64), np.zeros(len(units), dtype=np.int64)
-    for start in range(0, ticks.size, chunk):
-        p = pair[start:start + chunk]
-        t, k = ticks[start:start + chunk], pair_trial[p]
-        out = (t < lo[k]) | (t >= hi[k])
-        outside += int(np.count_nonzero(out))
-        total += np.bincount(pair_unit[p], minlength=len(units))
-        inside += np.bincount(pair_unit[p[~out]], minlength=len(units))
-    hint = (f"is time_unit = {layout.time_unit!r} right, and are spike and trial times on the same clock "
-            f"({layout.clock!r})?")
-    if ticks.size and outside == ticks.size:
-        raise DataError(Problem(f"no spike falls inside its trial's recorded extent: {hint}",
-                                layout.locs.get("time", ()), layout.where))
-    check_every_unit_inside(total, inside, units, "inside its trial's recorded extent", layout)
-    if outside > ticks.size / 2:
-        warnings.warn(f"{layout.where}: {outside} of {ticks.size} spikes fall outside their trial's recorded extent: "
-                      f"{hint}", FigspecWarning, stacklevel=3)
-
-
-def check_unit_names(names: np.ndarray, layout: Layout) -> None:
-    """Unit names are drawn as text: one with a control character would make an invalid SVG."""
-    from figspec.spec.fields import control_characters
-
-    bad = [name for name in names.tolist() if control_characters(name)]
-    if bad:
-        raise DataError(Problem(f"unit names may not hold control characters ({len(bad)} do, e.g. "
-                                f"{bad[0]!r})", layout.locs.get("unit", ()), layout.where))
-
-
-LONGEST_STIMULUS_MS = 10_000     # common practice: single-unit stimuli last ms to seconds, rarely longer
-SHORTEST_TRIAL_MS = 1.0
-
-
-def check_durations(table: Table, layout: Layout) -> None:
-    """Stimuli that last minutes, or trials recorded for less than a millisecond, mean the
-    time unit is likely wrong (ms read as s, or s as ms): a warning, since a lab may mean it."""
-    hint = f"is time_unit = {layout.time_unit!r} right?"
-    stimulus = table["stim_stop_ms"] - table["stim_start_ms"]
-    stimulus = stimulus[np.isfinite(stimulus)]
-    if stimulus.size and np.median(stimulus) > LONGEST_STIMULUS_MS:
-        warnings.warn(f"{layout.where}: the stimulus lasts {np.median(stimulus) / 1000:g} s in the median trial: "
-                      f"{hint}", FigspecWarning, stacklevel=3)
-    extent = table["extent_hi_ms"] - table["extent_lo_ms"]
-    extent = extent[np.isfinite(extent)]
-    if extent.size and np.median(extent) < SHORTEST_TRIAL_MS:
-        warnings.warn(f"{layout.where}: each trial was recorded for {np.median(extent):g} ms in the median trial: "
-                      f"{hint}", FigspecWarning, stacklevel=3)
-
-
 def sort_order(pair: np.ndarray, ticks: np.ndarray) -> np.ndarray | slice:
     """The order that sorts spikes by pair, then time: nothing to do when they arrive so (as a
     sorter's per-unit time-sorted output usually does), else one stable sort by pair of the
@@ -246,117 +158,6 @@ def sort_order(pair: np.ndarray, ticks: np.ndarray) -> np.ndarray | slice:
         return slice(None)
     by_time = np.argsort(ticks, kind="stable")
     return by_time[np.argsort(pair[by_time], kind="stable")]
-
-
-def trial_table(trials: Table, keys: list[str], layout: Layout) -> tuple[Table, dict]:
-    """The trial table in presentation order with its display columns, and its event times in
-    ticks (``align``, and ``start``/``stop`` on the data's clock when given)."""
-    locs, where = layout.locs, layout.where
-    level = finite_numbers(trials["level"], "levels", locs.get("level", ()), where)
-    ticks = {name: to_ticks(trials[name], layout, f"{name} times", name)
-             for name in ("onset", "offset", "start", "stop") if name in trials}
-    ticks.update({c: to_ticks(trials[c], layout, f"{c[6:]} times", c) for c in trials if c.startswith("event:")})
-    align = ticks.get(layout.align_column, np.zeros(len(trials), dtype=np.int64))
-    if layout.assign == "by_time" and "stop" not in ticks and layout.extent_ms is not None:
-        lo, hi = np.rint(np.asarray(layout.extent_ms) * layout.ticks_per_ms).astype(np.int64)
-        ticks["start"], ticks["stop"] = np.maximum(ticks.get("start", align + lo), align + lo), align + hi
-    if "unit" in trials:
-        trials = trials.with_columns({"unit": text(trials["unit"])})
-    order = _presentation_order(trials, ticks, align, layout)
-    trials = trials.with_columns({"level": level}).take(order)
-    ticks = {k: v[order] for k, v in ticks.items()}
-    align = align[order]
-    per_ms = layout.ticks_per_ms
-    onset = ticks.get("onset", align)
-    added = {"stim_start_ms": (onset - align) / per_ms}
-    if "offset" in ticks:
-        if np.any(ticks["offset"] <= onset):
-            raise DataError(Problem("every stimulus offset must come after its onset", locs.get("offset", ()), where))
-        added["stim_stop_ms"] = (ticks["offset"] - align) / per_ms
-    else:
-        added["stim_stop_ms"] = np.full(len(trials), np.nan)
-    if "start" in ticks and "stop" in ticks and np.any(ticks["stop"] <= ticks["start"]):
-        bad = int(np.count_nonzero(ticks["stop"] <= ticks["start"]))
-        raise DataError(Problem(f"every trial must stop after it starts; {bad} trials do not", locs.get("stop", ()),
-                                where))
-    added["extent_lo_ms"], added["extent_hi_ms"] = _extent(ticks, align, layout)
-    added["trial"] = trials[keys[0]] if len(keys) == 1 else joined_keys([trials[k] for k in keys])
-    added["sequence"] = _sequence(trials, keys, layout)
-    trials = trials.with_columns(added)
-    _unique_trials(trials, keys, layout)
-    return trials, {**ticks, "align": align}
-
-
-def joined_keys(columns: list[np.ndarray]) -> np.ndarray:
-    """The values of a key of several columns shown as one text, joined by "/"."""
-    out = np.asarray(columns[0]).astype(str)
-    for column in columns[1:]:
-        out = np.char.add(np.char.add(out, "/"), np.asarray(column).astype(str))
-    return out
-
-
-def _presentation_order(trials: Table, ticks: dict, align: np.ndarray, layout: Layout) -> np.ndarray:
-    rows = np.arange(len(trials))
-    if layout.clock == "session":
-        when = ticks.get("start", align)
-        group = trials["unit"] if "unit" in trials else np.zeros(len(trials))
-        return np.lexsort((rows, when, group))
-    if "unit" in trials:
-        return np.lexsort((rows, trials["unit"]))
-    return rows
-
-
-def _sequence(trials: Table, keys: list[str], layout: Layout) -> np.ndarray:
-    """Each trial's rank in presentation order, which resampling follows, so a bootstrap depends on
-    the trials and not on how their keys are spelled or the rows ordered: on a session clock the
-    order of the table (sorted by time); otherwise the order of the keys, numbers as numbers and
-    text in natural order ("t2" before "t10"), so keys 1, 2, ... and "t1", "t2", ... agree."""
-    if layout.clock == "session":
-        return np.arange(len(trials), dtype=np.int64)
-    columns = []
-    for key in reversed(keys):
-        values = trials[key]
-        if values.dtype.kind in "iuf":
-            columns.append(values)
-        else:
-            distinct, codes = np.unique(values.astype(str), return_inverse=True)
-            names = distinct.tolist()
-            rank = np.empty(len(names), dtype=np.int64)
-            rank[sorted(range(len(names)), key=lambda i: natural_key(names[i]))] = np.arange(len(names))
-            columns.append(rank[codes.reshape(-1)])
-    order = np.lexsort(columns)
-    sequence = np.empty(len(trials), dtype=np.int64)
-    sequence[order] = np.arange(len(trials))
-    return sequence
-
-
-def _extent(ticks: dict, align: np.ndarray, layout: Layout) -> tuple[np.ndarray, np.ndarray]:
-    """What was recorded of each trial around its alignment event (ms; -inf/inf when unknown):
-    from start and stop, from a declared extent, or (on a trial clock) from the trial start at 0."""
-    per_ms = layout.ticks_per_ms
-    lo, hi = np.full(align.size, -np.inf), np.full(align.size, np.inf)
-    if "start" in ticks:
-        lo = (ticks["start"] - align) / per_ms
-    elif layout.clock == "trial":
-        lo = -align / per_ms
-    if "stop" in ticks:
-        hi = (ticks["stop"] - align) / per_ms
-    if layout.extent_ms is not None:
-        lo, hi = np.maximum(lo, layout.extent_ms[0]), np.minimum(hi, layout.extent_ms[1])
-    return lo, hi
-
-
-def _unique_trials(trials: Table, keys: list[str], layout: Layout) -> None:
-    per_unit = "unit" in trials
-    codes, _ = row_codes([trials[c] for c in (["unit"] if per_unit else []) + keys])
-    dup = ~first_of_each(codes)
-    if dup.any():
-        first = int(np.argmax(dup))
-        raise DataError(Problem(f"the trial key must be unique{' per unit' if per_unit else ''} in the trial table; "
-                                f"{int(dup.sum())} rows repeat a key (a key of several columns, e.g. level and "
-                                "trial number, tells trials apart when numbers restart)",
-                                layout.locs.get("key0", ()), shown([trials[k][first] for k in keys]) if len(keys) > 1
-                                else shown(trials[keys[0]][first])))
 
 
 def pairs(trials: Table, units: list[str]) -> tuple[np.ndarray, np.ndarray]:
