@@ -107,7 +107,7 @@ def draft_text(s: Survey, spec_path: Path) -> str:
                 _line("stop_ms", 50, note="question: 50 ms is a placeholder: how long was the stimulus?")]
     out += [_line("label", "Stimulus"), ""]
     out += _source_lines(s, folder)
-    out += _panel_lines(unit, units_note, w, no_baseline=w["window"][0] >= 0)
+    out += _panel_lines(unit, units_note, w, no_baseline=w["window"][0] >= 0, kept=s.keep_units is not None)
     return "\n".join(out) + "\n"
 
 
@@ -124,25 +124,38 @@ def _source_lines(s: Survey, folder: Path) -> list[str]:
         return lines + [""]
     if s.spikes.format != "csv":
         lines += [_line("format", s.spikes.format)]
-    lines += [_line("spikes", _relative(s.spikes.path, folder))]
+    if s.spikes.format == "sample_arrays":
+        samples, units = s.spikes.unit_names.split("|")
+        lines += [_line("folder", _relative(s.spikes.path, folder))]
+        lines += [_line(key, value) for key, value, default in (("spike_samples", samples, "spike_samples.npy"),
+                                                                 ("spike_units", units, "spike_units.npy"))
+                  if value != default]
+    else:
+        lines += [_line("spikes", _relative(s.spikes.path, folder))]
     if s.trials is not None:
         lines += [_line("trials", _relative(s.trials.path, folder))]
     if s.spikes.format == "csv" and s.spikes.delimiter != ",":
         lines += [_line("delimiter", s.spikes.delimiter, note="guess: sniffed from the file's first lines")]
-    lines += [_line("time_unit", s.time_unit.value, s.time_unit)]
+    if s.spikes.format != "sample_arrays":
+        lines += [_line("time_unit", s.time_unit.value, s.time_unit)]
+    if s.sampling_rate_hz is not None:
+        lines += [_line("sampling_rate_hz", s.sampling_rate_hz.value, s.sampling_rate_hz)]
+    if s.trial_time_unit is not None:
+        lines += [_line("trial_time_unit", s.trial_time_unit.value, s.trial_time_unit)]
     if s.trials_per_level is not None:
         lines += [_line("trials_per_level", s.trials_per_level.value, s.trials_per_level)]
     if s.extent_ms is not None:
         lines += [_line("extent_ms", s.extent_ms.value, s.extent_ms)]
-    if s.clock.value != "aligned" or s.trials is not None:
+    if s.spikes.format != "sample_arrays" and (s.clock.value != "aligned" or s.trials is not None):
         lines += [_line("clock", s.clock.value, s.clock)]
-    if s.trials is not None and "trial" not in s.spike_columns:
+    if s.trials is not None and "trial" not in s.spike_columns and s.spikes.format != "sample_arrays":
         lines += [_line("assign_spikes", "by_time", note="guess: no trial column in the spike table: spikes "
                         "belong to the trial whose start..stop holds them")]
-    lines += ["", f"[sources.{name}.spike_columns]"]
-    for role in ("unit", "trial", "time", "level"):
-        if role in s.spike_columns:
-            lines.append(_line(role, s.spike_columns[role].value, s.spike_columns[role]))
+    if s.spikes.format != "sample_arrays":
+        lines += ["", f"[sources.{name}.spike_columns]"]
+        for role in ("unit", "trial", "time", "level"):
+            if role in s.spike_columns:
+                lines.append(_line(role, s.spike_columns[role].value, s.spike_columns[role]))
     if s.trials is not None:
         lines += ["", f"[sources.{name}.trial_columns]"]
         for role in ("trial", "level", "onset", "offset", "start", "stop"):
@@ -151,13 +164,23 @@ def _source_lines(s: Survey, folder: Path) -> list[str]:
         if s.events:
             shown = ", ".join(f"{k} = {_toml(v)}" for k, v in s.events.items())
             lines.append(f"# events = {{ {shown} }}   # other times in the trial table, to align to if you wish")
+    table = s.spikes.unit_table
+    if table is not None:
+        unit_file = table.path.name if s.spikes.format == "sample_arrays" else _relative(table.path, folder)
+        lines += ["", f"[sources.{name}.unit_table]", _line("file", unit_file, note="guess: a per-unit table beside "
+                  "the spikes"), _line("id", table.id, note="guess: its column of unit ids")]
+        if s.keep_units is not None:
+            lines += ["", f"[sources.{name}.keep_units]"]
+            (column, value), = s.keep_units.value.items()
+            lines += [_line(column, value, s.keep_units)]
     return lines + [""]
 
 
-def _panel_lines(unit: str, units_note: str, w: dict, no_baseline: bool = False) -> list[str]:
+def _panel_lines(unit: str, units_note: str, w: dict, no_baseline: bool = False, kept: bool = False) -> list[str]:
     window, response, baseline = (list(map(float, w[k])) for k in ("window", "response", "baseline"))
     step = _step_for(window[1] - window[0])
-    unit_line = _line("unit", unit, note=f"guess: the unit with the most spikes; units: {units_note}")
+    unit_line = _line("unit", unit, note=f"guess: the {'kept ' if kept else ''}unit with the most spikes; "
+                      f"units: {units_note}")
     return [
         "[[panels]]", _line("name", "spikes"), _line("kind", "raster"), unit_line, _line("cell", [1, 1]),
         _line("span", [2, 1]),

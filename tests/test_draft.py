@@ -124,3 +124,40 @@ def test_parquet_and_nwb_files_give_specs_that_check(tmp_path, cli, fmt):
         assert source["unit_names"] == "unit_name" and source["trial_columns"]["onset"] == "onset_s"
     else:
         assert source["clock"] == "session" and source["time_unit"] == "s"
+
+
+def test_a_sorter_folder_gives_a_spec_that_keeps_the_good_units(tmp_path, cli):
+    shutil.copytree(SPECS / "data" / "probe_sorted", tmp_path / "sorted")
+    shutil.copy(SPECS / "data" / "trials.csv", tmp_path / "trials.csv")
+    ran = cli("draft", "sorted", "trials.csv", "-o", "probe.toml", cwd=tmp_path)
+    assert ran.returncode == 0, ran.stderr
+    spec = tomli.loads((tmp_path / "probe.toml").read_text())
+    source = spec["sources"]["recording"]
+    assert source["format"] == "sample_arrays" and source["sampling_rate_hz"] == 30000
+    assert source["unit_table"] == {"file": "units.tsv", "id": "unit_id"} and source["keep_units"] == {"label": "good"}
+    # the busiest cluster (id 0) is labelled noise: the draft shows the busiest good unit instead
+    assert spec["panels"][0]["unit"] == "7"
+    assert "question: what is the recording's sampling rate" in (tmp_path / "probe.toml").read_text()
+
+
+def test_columns_recognised_by_content(tmp_path, cli):
+    """Integer sample indices named spike_sample, a level named amp_um, and a level column with an
+    opaque name recognised by its few repeated values; each spec checks."""
+    import numpy as np
+    import pandas as pd
+
+    samples = np.load(SPECS / "data" / "probe_sorted" / "spike_samples.npy")
+    units = np.load(SPECS / "data" / "probe_sorted" / "spike_units.npy")
+    pd.DataFrame({"cluster": units, "spike_sample": samples}).to_csv(tmp_path / "s.csv", index=False)
+    trials = pd.read_csv(SPECS / "data" / "trials.csv")
+    trials.rename(columns={"level_db": "amp_um"}).to_csv(tmp_path / "t.csv", index=False)
+    trials.rename(columns={"level_db": "xq"}).to_csv(tmp_path / "t2.csv", index=False)
+    ran = cli("draft", "s.csv", "t.csv", "-o", "a.toml", cwd=tmp_path)
+    assert ran.returncode == 0, ran.stderr
+    source = tomli.loads((tmp_path / "a.toml").read_text())["sources"]["recording"]
+    assert source["time_unit"] == "samples" and source["trial_time_unit"] == "s"
+    assert source["spike_columns"]["time"] == "spike_sample" and source["trial_columns"]["level"] == "amp_um"
+    ran = cli("draft", "s.csv", "t2.csv", "-o", "b.toml", cwd=tmp_path)
+    assert ran.returncode == 0, ran.stderr
+    assert tomli.loads((tmp_path / "b.toml").read_text())["sources"]["recording"]["trial_columns"]["level"] == "xq"
+    assert "question: is 'xq' the level varied?" in ran.stdout

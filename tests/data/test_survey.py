@@ -5,7 +5,8 @@ from __future__ import annotations
 
 import pytest
 
-from figspec.data.survey import Table, match_role, read_any, sniff_delimiter, survey
+from figspec.data.survey import Table, match_role, read_any, survey
+from figspec.data.survey_read import sniff_delimiter
 from figspec.errors import DataError
 from helpers import invented_tables as _recording
 
