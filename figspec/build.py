@@ -50,6 +50,8 @@ class BuildOptions:
     profile: str | None = None
     strict: bool = False
     force: bool = False
+    read_cache: str | None = None            # where reads shared by several specs are kept (a build sets it)
+    shared_inputs: frozenset[str] = frozenset()   # the data files two or more specs of the build read
 
 
 def build_record(spec_path: Path, formats: Sequence[str] | None, style: str | None) -> dict:
@@ -108,9 +110,11 @@ def render_one(spec: str, options: BuildOptions, reason: str = "") -> SpecResult
     from figspec import pipeline
     from figspec.errors import FigspecWarning, UserError
 
+    from figspec.data import read_cache
+
     start = time.perf_counter()
     result = SpecResult(spec, reason=reason)
-    with warnings.catch_warnings(record=True) as caught:
+    with warnings.catch_warnings(record=True) as caught, read_cache.use(options.read_cache, options.shared_inputs):
         warnings.simplefilter("always", FigspecWarning)
         try:
             resolved = pipeline.check(spec, options.style)
@@ -174,6 +178,7 @@ def build(specs: Sequence[Path], options: BuildOptions, jobs: int = 1, runner: R
             finished(SpecResult(name, "skipped", why))
         else:
             stale[name] = why
+    options = with_read_cache(options, list(stale))
     if runner is not None and stale:
         for result in runner(stale, options):
             finished(result)
@@ -189,11 +194,40 @@ def build(specs: Sequence[Path], options: BuildOptions, jobs: int = 1, runner: R
             futures = [pool.submit(render_one, name, options, why) for name, why in stale.items()]
             for future in as_completed(futures):
                 finished(future.result())
+    if options.read_cache is not None:
+        from figspec.data.read_cache import remove
+
+        remove(Path(options.outdir))
     if Path(options.outdir).is_dir():
         from figspec.output.review_page import write_index
 
         write_index(Path(options.outdir))      # every figure of the folder, its legend and files
     return [done[name] for name in names]
+
+
+def with_read_cache(options: BuildOptions, specs: list[str]) -> BuildOptions:
+    """The options with the read cache set up when two or more of ``specs`` read one data file
+    (each spec's sources' files, found without reading any data)."""
+    from dataclasses import replace
+
+    from figspec.data.read_cache import FOLDER
+    from figspec.errors import UserError
+    from figspec.spec.loader import load_spec
+
+    seen: dict[str, int] = {}
+    for name in specs:
+        try:
+            spec = load_spec(Path(name))
+        except (UserError, OSError):
+            continue
+        files = {str((spec.folder / path).resolve()) for src in spec.model.sources.values()
+                 for role, path in src.files().items() if role in ("spikes", "trials")}
+        for path in files:
+            seen[path] = seen.get(path, 0) + 1
+    shared = frozenset(path for path, n in seen.items() if n > 1)
+    if not shared:
+        return options
+    return replace(options, read_cache=str(Path(options.outdir) / FOLDER), shared_inputs=shared)
 
 
 def default_jobs() -> int:

@@ -116,3 +116,35 @@ def test_warnings_name_their_spec_and_piped_output_is_plain_lines():
                            SpecResult("b.toml", "skipped")])
     assert table.splitlines()[0].split() == ["spec", "status", "seconds", "files", "warnings"]
     assert table.splitlines()[-1].startswith("1 rendered, 1 skipped, 0 failed")
+
+
+def test_specs_of_one_build_that_read_one_file_parse_it_once(tmp_path, monkeypatch):
+    """Three specs on the same data: the CSV reader runs once for them (the read cache, which
+    lives for one build); the outputs equal those of specs rendered one at a time without it."""
+    import shutil
+
+    from figspec.data import csv_source, read_cache
+    from helpers import SPECS
+
+    data = tmp_path / "data"
+    data.mkdir()
+    for name in ("spikes.csv", "trials.csv"):
+        shutil.copy(SPECS / "data" / name, data / name)
+    specs = [write_spec(tmp_path, SMALL_SPEC.replace("@DATA@", str(data)).replace('title = "t"', f'title = "f{i}"'),
+                        f"fig{i}.toml") for i in range(3)]
+    calls, entries = [], []
+    real, real_load = csv_source.read_table, read_cache._load
+    monkeypatch.setattr(csv_source, "read_table", lambda path, *a, **k: calls.append(path.name) or real(path, *a, **k))
+    monkeypatch.setattr(read_cache, "_load", lambda entry: entries.append(entry.name) or real_load(entry))
+    shared = build(specs, BuildOptions(str(tmp_path / "out"), formats=("svg",)))
+    assert [r.status for r in shared] == ["rendered"] * 3
+    assert calls == ["spikes.csv", "trials.csv"] and len(entries) == 2 and len(set(entries)) == 1
+    assert not (tmp_path / "out" / read_cache.FOLDER).exists()          # gone with the build
+    for spec in specs:                                  # one spec per build: no cache
+        build([spec], BuildOptions(str(tmp_path / "alone"), formats=("svg",)))
+    alone = {k: v for k, v in _bytes(tmp_path / "alone").items() if not k.endswith(("manifest.json", "index.html"))}
+    assert alone == {k: v for k, v in _bytes(tmp_path / "out").items() if k in alone}
+    (data / "spikes.csv").write_text((data / "spikes.csv").read_text() + "u1,1,0.25\n")
+    calls.clear()
+    build(specs, BuildOptions(str(tmp_path / "out"), formats=("svg",)))
+    assert calls == ["spikes.csv", "trials.csv"]                          # changed bytes: read again, once

@@ -10,7 +10,7 @@ from __future__ import annotations
 from pathlib import Path
 from typing import Callable
 
-from figspec.data import csv_source, nwb_source, parquet_source, sample_arrays, unit_table
+from figspec.data import csv_source, nwb_source, parquet_source, read_cache, sample_arrays, unit_table
 from figspec.data.assemble import Layout, TrialCounts, assemble
 from figspec.data.columns import Plan, column_plan, key_paths, rename, trial_plan
 from figspec.data.recording import Recording
@@ -79,7 +79,7 @@ def load_source(src: SourceBase, folder: Path, loc: Loc, units: set[str] | None 
         spikes = rename(frames[0], planned[0], "the spike table")
         trials = None if frames[1] is None or planned[1] is None else rename(frames[1], planned[1], "the trial table")
     else:
-        spikes, trials = READERS[src.format](reading, folder, loc, planned, units)
+        spikes, trials = read(reading, folder, loc, planned, units)
     if getattr(src, "unit_name", None) is not None:
         spikes = spikes.with_columns({"unit": src.unit_name})
     where = " and ".join(str(folder / path) for role, path in src.files().items() if role != "units") \
@@ -90,3 +90,17 @@ def load_source(src: SourceBase, folder: Path, loc: Loc, units: set[str] | None 
                                    folder / src.unit_files()["units"], loc)
         rec = rec.keep_units(choice.kept, choice)
     return rec
+
+
+def read(src: SourceBase, folder: Path, loc: Loc, planned: tuple[Plan, Plan | None], units: set[str] | None) -> Frames:
+    """The source's canonical tables from its reader, or, during a build where other specs read
+    the same files, from the read cache (:mod:`figspec.data.read_cache`), then cut to ``units``."""
+    paths = [folder / path for role, path in src.files().items() if role in ("spikes", "trials")]
+    if not read_cache.applies(src.format, paths):
+        return READERS[src.format](src, folder, loc, planned, units)
+    description = {"format": src.format, "plans": planned,
+                   "source": src.model_dump(mode="json", exclude={"keep", "keep_units", "unit_table"})}
+    spikes, trials = read_cache.cached(description, paths, lambda: READERS[src.format](src, folder, loc, planned, None))
+    if units is not None and planned[1] is not None and getattr(src, "unit_name", None) is None:
+        spikes = read_cache.keep_units(spikes, units)
+    return spikes, trials
