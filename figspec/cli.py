@@ -147,7 +147,7 @@ def run(argv: Sequence[str] | None = None) -> int:
         warnings.simplefilter("always", FigspecWarning)
         try:
             files = _spec_files(args.specs)
-            formats = _formats(getattr(args, "formats", None))
+            _formats(getattr(args, "formats", None))          # a bad --format is a user error here
         except UserError as err:
             files, failed = [], True
             for problem in err.problems:
@@ -193,9 +193,7 @@ def _render(args: argparse.Namespace) -> int:
         files = _spec_files(args.specs)
         formats = _formats(args.formats)
     except UserError as err:
-        for problem in err.problems:
-            print(problem.format(), file=sys.stderr)
-        return EXIT_USER
+        return _failed(err)
     options = BuildOptions(args.outdir, tuple(formats) if formats else None, args.style, args.profile,
                            args.strict, args.force)
     jobs = args.jobs if args.jobs is not None else default_jobs()
@@ -221,32 +219,14 @@ def _render(args: argparse.Namespace) -> int:
 
 def _draft(args: argparse.Namespace) -> int:
     """``draft``: survey the data, write the spec, check it, and list the questions left."""
-    from figspec import pipeline
-    from figspec.draft import draft
+    from figspec.draft import write_draft
 
-    target = Path(args.output)
     try:
-        if target.exists() and not args.force:
-            raise UserError(Problem("exists already; choose another name or add --force", file=str(target)))
-        if target.suffix != ".toml":
-            raise UserError(Problem("a spec file name ends in .toml", file=str(target)))
-        text, survey = draft(Path(args.spikes), Path(args.trials) if args.trials else None, target)
-        target.parent.mkdir(parents=True, exist_ok=True)
-        target.write_text(text, encoding="utf-8")
-        print(f"wrote {target}: {len(survey.units)} units, {len(survey.levels)} levels; every guess is a "
-              "'# guess:' comment")
-        for question in survey.questions:
-            print(f"question: {question}")
-        with warnings.catch_warnings(record=True) as caught:
-            warnings.simplefilter("always", FigspecWarning)
-            pipeline.check(target)
-        for message in dict.fromkeys(str(w.message) for w in caught if issubclass(w.category, FigspecWarning)):
-            print(f"{target}: warning: {message}", file=sys.stderr)
+        for stream, line in write_draft(Path(args.spikes), Path(args.trials) if args.trials else None,
+                                        Path(args.output), args.force):
+            print(line, file=sys.stderr if stream == "err" else sys.stdout)
     except UserError as err:
-        for problem in err.problems:
-            print(problem.format(), file=sys.stderr)
-        return EXIT_USER
-    print(f"{target} checks; draw it with: figspec render {target}")
+        return _failed(err)
     return EXIT_OK
 
 
@@ -263,9 +243,7 @@ def _watch(args: argparse.Namespace) -> int:
             raise UserError(Problem("figspec watch takes one spec file", file=args.spec))
         options = BuildOptions(args.outdir, tuple(_formats(args.formats)), args.style, None, False, True)
     except UserError as err:
-        for problem in err.problems:
-            print(problem.format(), file=sys.stderr)
-        return EXIT_USER
+        return _failed(err)
     preview = Preview(spec[0], options, lambda line: print(line, flush=True))
     preview.render()
     print(f"open {(Path(args.outdir) / 'index.html').resolve().as_uri()} ; watching "
@@ -275,9 +253,7 @@ def _watch(args: argparse.Namespace) -> int:
     except KeyboardInterrupt:
         pass
     except UserError as err:
-        for problem in err.problems:
-            print(problem.format(), file=sys.stderr)
-        return EXIT_USER
+        return _failed(err)
     return EXIT_OK
 
 
@@ -305,9 +281,14 @@ def _review(args: argparse.Namespace) -> int:
               "images and summary.txt beside it")
         return EXIT_OK
     except UserError as err:
-        for problem in err.problems:
-            print(problem.format(), file=sys.stderr)
-        return EXIT_USER
+        return _failed(err)
+
+
+def _failed(err: UserError) -> int:
+    """Print a user error's problems, one line each, and give the exit status for them."""
+    for problem in err.problems:
+        print(problem.format(), file=sys.stderr)
+    return EXIT_USER
 
 
 def main(argv: Sequence[str] | None = None) -> None:

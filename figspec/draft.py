@@ -13,6 +13,7 @@ import json
 import math
 import os
 import re
+import sys
 from pathlib import Path
 
 from figspec.data.survey import Guess, Survey, read_any, read_nwb, survey
@@ -211,3 +212,36 @@ def draft(spikes: Path, trials: Path | None, spec_path: Path) -> tuple[str, Surv
     else:
         s = survey(read_any(Path(spikes)), read_any(Path(trials)) if trials else None)
     return draft_text(s, spec_path), s
+
+
+def write_draft(spikes: Path, trials: Path | None, target: Path, force: bool = False) -> list[tuple[str, str]]:
+    """Survey the files, write the spec to ``target`` and check it: the lines to show, each with
+    its stream ("out" or "err"). A spec that does not check is reported by the error raised."""
+    import warnings
+
+    from figspec import pipeline
+    from figspec.errors import FigspecWarning, Problem, UserError
+
+    if target.exists() and not force:
+        raise UserError(Problem("exists already; choose another name or add --force", file=str(target)))
+    if target.suffix != ".toml":
+        raise UserError(Problem("a spec file name ends in .toml", file=str(target)))
+    text, survey = draft(spikes, trials, target)
+    target.parent.mkdir(parents=True, exist_ok=True)
+    target.write_text(text, encoding="utf-8")
+    lines = [("out", f"wrote {target}: {len(survey.units)} units, {len(survey.levels)} levels; every guess is a "
+                     "'# guess:' comment")]
+    lines += [("out", f"question: {question}") for question in survey.questions]
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", FigspecWarning)
+        try:
+            pipeline.check(target)
+        except UserError as err:
+            for stream, line in lines:
+                print(line, file=sys.stdout)
+            raise type(err)(err.problems + [Problem("the draft was written but does not check yet: answer the "
+                                                    "problem(s) above in it (the lines marked 'question:' say "
+                                                    "what figspec could not tell)", file=str(target))]) from None
+    lines += [("err", f"{target}: warning: {message}")
+              for message in dict.fromkeys(str(w.message) for w in caught if issubclass(w.category, FigspecWarning))]
+    return lines + [("out", f"{target} checks; draw it with: figspec render {target}")]
