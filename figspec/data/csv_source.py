@@ -23,7 +23,7 @@ from figspec.spec.sources import CsvSource
 
 DELIMITER_NAMES = {",": "comma", ";": "semicolon", "\t": "tab", "|": "bar", " ": "space"}
 BLOCK_BYTES = 1 << 20
-LONGEST_FIELD = 1000            # characters in a unit name, trial key or selection value
+LONGEST_FIELD = 1000            # characters in any field figspec reads (a name, key, value or number)
 
 
 def read(src: CsvSource, folder: Path, loc: Loc, plans: tuple[Plan, Plan | None],
@@ -143,15 +143,19 @@ def read_table(path: Path, wanted: Plan, file_loc: Loc, delimiter: str = ",", sr
     kinds = {column: _kind(column, wanted, samples) for column in names}
     unit_column = wanted["unit"][0] if "unit" in wanted and units is not None else None
     try:
-        columns = _stream(path, delimiter, kinds, unit_column, units)
-    except _NotANumber:
-        columns = _stream(path, delimiter, {c: "text" for c in kinds}, unit_column, units)
-        columns = {c: (v if kinds[c] == "text" or v is None else v.decoded()) for c, v in (columns or {}).items()} or None
+        try:
+            columns = _stream(path, delimiter, kinds, unit_column, units)
+        except _NotANumber:
+            columns = _stream(path, delimiter, {c: "text" for c in kinds}, unit_column, units)
+            columns = {c: (v if kinds[c] == "text" else v.decoded()) for c, v in (columns or {}).items()} or None
     except _Refused as err:
         raise DataError(_refusal(path, delimiter, header, str(err), file_loc)) from None
+    except _TooLong as err:
+        loc = next(loc for column, loc in wanted.values() if column == err.column)
+        raise DataError(Problem(f"a field of column {err.column!r} in {path} is {err.length} characters long; "
+                                f"figspec reads fields of at most {LONGEST_FIELD} characters", loc)) from None
     if columns is None:
         raise DataError(Problem(f"{path} has a header but no rows", file_loc))
-    _check_lengths(columns, path, wanted)
     out = {}
     for canonical, (column, _) in wanted.items():
         values = columns[column]
@@ -167,6 +171,12 @@ class _NotANumber(Exception):
 
 class _Refused(Exception):
     pass
+
+
+class _TooLong(Exception):
+    def __init__(self, column: str, length: int):
+        super().__init__(column)
+        self.column, self.length = column, length
 
 
 def _stream(path: Path, delimiter: str, kinds: dict[str, str], unit_column: str | None,
@@ -208,7 +218,13 @@ def _stream(path: Path, delimiter: str, kinds: dict[str, str], unit_column: str 
     out = {}
     for c, chunks in parts.items():
         joined = np.concatenate(chunks) if chunks else np.empty(0)
-        out[c] = Coded(np.array(list(names[c]), dtype=str), joined) if c in names else joined
+        if c in names:
+            longest = max(map(len, names[c]), default=0)
+            if longest > LONGEST_FIELD:                 # before a fixed-width array of every value is made
+                raise _TooLong(c, longest)
+            out[c] = Coded(np.array(list(names[c]), dtype=str), joined)
+        else:
+            out[c] = joined
     return out
 
 
@@ -246,20 +262,6 @@ def _whole_numbers(column: Coded):
         if all(-2 ** 63 <= v < 2 ** 63 for v in as_int):
             return np.array(as_int, dtype=np.int64)[column.codes]
     return column.decoded()
-
-
-def _check_lengths(columns: dict, path: Path, wanted: Plan) -> None:
-    """Names, keys and selection values longer than :data:`LONGEST_FIELD` characters are an error
-    (a text column is held at the width of its longest value, so one runaway field would cost
-    memory for every row)."""
-    for canonical, (column, loc) in wanted.items():
-        values = columns[column]
-        if isinstance(values, Coded) and values.values.size:
-            longest = int(np.char.str_len(values.values).max())
-            if longest > LONGEST_FIELD:
-                raise DataError(Problem(f"a field of column {column!r} in {path} is {longest} characters long; "
-                                        f"figspec reads names, keys and selection values of at most {LONGEST_FIELD}",
-                                        loc))
 
 
 def _refusal(path: Path, delimiter: str, header: list[str], message: str, file_loc: Loc) -> Problem:
