@@ -5,7 +5,7 @@ every 600 ms with a jittered onset, spike times exact to the microsecond, some e
 edges, trials and a whole level without spikes for one unit, string unit ids, trial numbers that
 restart at every level, spike rows shuffled. It is written as CSV in four clock layouts (times
 relative to onset; to each trial's start; on the session clock with a trial column; on the
-session clock without one), as Parquet and as NWB, and every copy must give byte-identical rate
+session clock without one), as Parquet, as NWB and as a sorter's sample arrays (at 1 MHz), and every copy must give byte-identical rate
 tables and stimulus windows, and the same spikes (the trial ids are each layout's own), equal to
 a direct integer computation: count = #{spikes with floor((t - onset) / bin) = i} (numpy).
 """
@@ -90,6 +90,13 @@ def write_layouts(folder, spikes, trials, rng):
     pd.read_csv(folder / "session_spikes.csv", dtype=str).astype({"t": float}).to_parquet(folder / "p_spikes.parquet", row_group_size=50)
     pd.read_csv(folder / "session_trials.csv", dtype={"trial": str}).to_parquet(folder / "p_trials.parquet")
     out["parquet"] = f'format = "parquet"\nspikes = "p_spikes.parquet"\ntrials = "p_trials.parquet"\n{session_cols}'
+    sorted_folder = folder / "sorted"                  # a sorter's arrays: samples at 1 MHz (1 sample = 1 µs)
+    sorted_folder.mkdir()
+    np.save(sorted_folder / "spike_samples.npy", session_us.to_numpy()[shuffled].astype(np.int64))
+    np.save(sorted_folder / "spike_units.npy", spikes["unit"].to_numpy()[shuffled].astype(str))
+    out["samples"] = ('format = "sample_arrays"\nfolder = "sorted"\nsampling_rate_hz = 1000000\n'
+                      'trials = "sorter_trials.csv"\n'
+                      'trial_columns = { trial = "trial", level = "level", onset = "onset", start = "start", stop = "stop" }\n')
     write_nwb(folder / "rec.nwb", spikes, trials, session_us)
     out["nwb"] = ('format = "nwb"\nfile = "rec.nwb"\nunit_names = "unit_name"\n'
                   'trial_columns = { level = "level", onset = "onset" }\n')
