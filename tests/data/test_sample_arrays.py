@@ -145,3 +145,19 @@ def test_a_csv_in_samples_reads_whole_numbers_exactly(tmp_path):
                                     "sampling_rate_hz": 30000, "spike_columns": {"time": "spike_sample"}})
     rec = load_source(src, tmp_path, ("sources", "c"))
     assert rec.ticks.tolist() == [100_100, 1_100]        # 3003 / 30 kHz = 100.1 ms; 33 samples = 1.1 ms
+
+
+def test_a_parquet_table_in_samples_reads_as_the_csv_does(tmp_path):
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+
+    from figspec.spec.sources import ParquetSource
+
+    pq.write_table(pa.table({"unit": ["u1", "u1"], "trial": [1, 2], "spike_sample": pa.array([3003, 33], pa.int64())}),
+                   tmp_path / "s.parquet")
+    pq.write_table(pa.table({"trial": [1, 2], "level": [10.0, 20.0]}), tmp_path / "t.parquet")
+    src = ParquetSource.model_validate({"format": "parquet", "spikes": "s.parquet", "trials": "t.parquet",
+                                        "time_unit": "samples", "sampling_rate_hz": 30000,
+                                        "spike_columns": {"time": "spike_sample"}})
+    rec = load_source(src, tmp_path, ("sources", "p"))
+    assert rec.ticks.tolist() == [100_100, 1_100]
