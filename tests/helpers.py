@@ -71,8 +71,7 @@ spikes = "@DATA@/spikes.csv"
 trials = "@DATA@/trials.csv"
 spike_columns = { unit = "unit", trial = "trial", time = "time_s" }
 clock = "session"
-trial_columns = { trial = "trial", level = "level_db", onset = "onset_s", offset = "offset_s",
-                  start = "start_s", stop = "stop_s" }
+trial_columns = { trial = "trial", level = "level_db", onset = "onset_s", offset = "offset_s", start = "start_s", stop = "stop_s" }
 
 [[panels]]
 name = "spikes"

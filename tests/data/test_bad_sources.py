@@ -42,7 +42,7 @@ def test_a_trial_key_that_is_not_unique(tmp_path):
     (tmp_path / "s.csv").write_text("unit,trial,time\nu,1,0.01\n")
     text = MINIMAL_SPEC.replace("@DATA@/spikes.csv", str(tmp_path / "s.csv")).replace("@DATA@/trials.csv", str(tmp_path / "t.csv"))
     text = text.replace('clock = "session"\n', "").replace(
-        'trial_columns = { trial = "trial", level = "level_db", onset = "onset_s", offset = "offset_s",\n                  start = "start_s", stop = "stop_s" }',
+        'trial_columns = { trial = "trial", level = "level_db", onset = "onset_s", offset = "offset_s", start = "start_s", stop = "stop_s" }',
         'trial_columns = { trial = "trial", level = "level" }').replace('time = "time_s"', 'time = "time"')
     text = text.replace("per_trial = true", "start_ms = 0\nstop_ms = 50")
     [line] = problems(tmp_path, text)
