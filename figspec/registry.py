@@ -15,14 +15,15 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Callable, Literal
 
-from figspec.compute import latency, level_response, psth, raster
+from figspec.compute import latency, level_response, population_heatmap, psth, raster
 from figspec.compute.describe import generic_legend, trial_rows
 from figspec.draw import latency as latency_art
+from figspec.draw import population_heatmap as population_heatmap_art
 from figspec.draw import level_response as level_response_art
 from figspec.draw import psth as psth_art
 from figspec.draw import raster as raster_art
 from figspec.draw.colours import marked_categories
-from figspec.spec.panels import LatencyPanel, LevelResponsePanel, PsthPanel, RasterPanel
+from figspec.spec.panels import LatencyPanel, LevelResponsePanel, PopulationHeatmapPanel, PsthPanel, RasterPanel
 
 
 def unchanged(rec, panel, levels):
@@ -78,6 +79,9 @@ PANEL_KINDS: dict[str, PanelKind] = {
     "latency": PanelKind(LatencyPanel, latency.compute, latency_art.draw, latency_art.labels, "single",
                          limits=latency_art.limits, check=latency.check, statistics=latency.statistics,
                          legend=latency.legend),
+    "population_heatmap": PanelKind(PopulationHeatmapPanel, population_heatmap.compute, population_heatmap_art.draw,
+                                    population_heatmap_art.labels, "single", check=population_heatmap.check,
+                                    statistics=population_heatmap.statistics, legend=population_heatmap.legend),
 }
 
 

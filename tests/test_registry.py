@@ -33,8 +33,14 @@ def spec_with_every_kind() -> str:
     text = text.replace('name = "spikes"', 'name = "spikes"\ncell = [1, 1]\nspan = [2, 1]')
     text = text.replace('name = "rate"', 'name = "rate"\ncell = [1, 2]\nspan = [2, 1]')
     for i, kind in enumerate(KINDS):
-        text += f'\n[[panels]]\nname = "every_{kind}"\nkind = "{kind}"\nunit = "u2"\ncell = [{i % 2 + 1}, {i // 2 + 3}]\n'
+        units = 'units = "all"' if population(kind) else 'unit = "u2"'
+        text += f'\n[[panels]]\nname = "every_{kind}"\nkind = "{kind}"\n{units}\ncell = [{i % 2 + 1}, {i // 2 + 3}]\n'
     return text
+
+
+def population(kind: str) -> bool:
+    """A kind that shows many units at once (its model takes every unit by default)."""
+    return PANEL_KINDS[kind].model.model_fields["units"].default == "all"
 
 
 @pytest.fixture(scope="module")
@@ -60,9 +66,11 @@ def test_every_kind_writes_source_data_a_legend_sentence_and_statistics(rendered
     assert sum(line.startswith(f"- *every_{kind}*:") for line in legend) == 1
     stats = pd.read_csv(data / "statistics.csv")
     trials = stats[(stats["panel"] == f"every_{kind}") & (stats["quantity"] == "n_trials")]
-    assert sorted(trials["level"]) == list(range(0, 90, 10)) and set(trials["value"]) == {30}
+    units = ["u1", "u2", "u3"] if population(kind) else ["u2"]
+    assert sorted(trials["level"]) == sorted(list(range(0, 90, 10)) * len(units)) and set(trials["value"]) == {30}
     resolved = json.loads((data / "manifest.json").read_text())["parameters"]["panels_resolved"]
-    assert [p["unit"] for p in resolved if p["name"] == f"every_{kind}"] == ["u2"]
+    [panel] = [p for p in resolved if p["name"] == f"every_{kind}"]
+    assert (panel["units"] if population(kind) else [panel["unit"]]) == units
 
 
 def test_the_journal_check_reads_every_kind(rendered):

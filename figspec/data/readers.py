@@ -7,6 +7,7 @@ and everything after that (trials, clocks, alignment, units, selection) is share
 
 from __future__ import annotations
 
+from dataclasses import replace
 from pathlib import Path
 from typing import Callable
 
@@ -85,6 +86,10 @@ def load_source(src: SourceBase, folder: Path, loc: Loc, units: set[str] | None 
     where = " and ".join(str(folder / path) for role, path in src.files().items() if role != "units") \
         if frames is None else "the data frames"
     rec = assemble(spikes, trials, layout(src, where, key_paths(src, loc, planned), loc))
+    if table is not None:
+        ids = table[src.unit_table.id].tolist()
+        rec = replace(rec, unit_properties={column: dict(zip(ids, values.tolist())) for column, values in table.items()
+                                            if column != src.unit_table.id})
     if table is not None and src.keep_units:
         choice = unit_table.choose(table, src.unit_table.id, src.keep_units, list(rec.all_units),
                                    folder / src.unit_files()["units"], loc)

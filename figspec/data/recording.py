@@ -46,6 +46,7 @@ class Recording:
         them, or a per-unit table's rule left them out; named in messages that list the units).
     unit_choice : what chose the units, when a per-unit table did
         (:class:`figspec.data.unit_table.UnitChoice`), else None.
+    unit_properties : the source's per-unit table, when it has one: column -> {unit: value}.
     """
 
     units: tuple[str, ...]
@@ -58,6 +59,7 @@ class Recording:
     removed: tuple[tuple[str, int], ...] = ()
     unread_units: tuple[str, ...] = ()
     unit_choice: object = None
+    unit_properties: dict | None = None
 
     @property
     def all_units(self) -> tuple[str, ...]:
@@ -108,7 +110,7 @@ class Recording:
                          pair_unit=self.pair_unit[pair_keep], pair_trial=new_index[self.pair_trial[pair_keep]],
                          offsets=offsets, ticks=self.ticks[spike_keep], ticks_per_ms=self.ticks_per_ms,
                          removed=self.removed + removed, unread_units=self.unread_units,
-                         unit_choice=self.unit_choice)
+                         unit_choice=self.unit_choice, unit_properties=self.unit_properties)
 
     def keep_units(self, names, choice=None) -> "Recording":
         """The recording with only the units ``names`` (those not kept join ``unread_units``)."""

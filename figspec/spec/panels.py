@@ -163,7 +163,52 @@ class LatencyPanel(SummaryPanel):
         return None if self.fit == "none" else self.fit
 
 
-PANEL_MODELS = (RasterPanel, PsthPanel, LevelResponsePanel, LatencyPanel)
+class PopulationHeatmapPanel(PanelBase):
+    """``kind = "population_heatmap"``: one row per unit, time on x, each unit's rate as colour:
+    z-scored against the unit's own baseline (``scale = "z_score"``) or as a fraction of its own
+    peak (``"peak"``), averaged over the panel's ``levels`` (every level presented when not set;
+    each level weighs the same). Rows are sorted by ``sort_by``: the median first-spike latency in
+    ``response_ms``, the time of the rate's peak in ``response_ms``, the unit's name, or a column of
+    the source's per-unit table (``sort_by = "table"`` with ``sort_column``)."""
+
+    kind: Literal["population_heatmap"]
+    units: Annotated[list[str], Field(min_length=2)] | Literal["all"] = "all"
+    window_ms: WindowMs = (-50.0, 150.0)
+    bin_ms: PositiveMs = 5.0
+    scale: Literal["z_score", "peak"] = "z_score"
+    baseline_ms: WindowMs | None = None
+    response_ms: WindowMs = (0.0, 50.0)
+    sort_by: Literal["latency", "peak_time", "name", "table"] = "latency"
+    sort_column: str | None = None
+    colour_limit: Magnitude | None = None
+    y_label: Text | None = None
+
+    @model_validator(mode="after")
+    def _heatmap(self) -> "PopulationHeatmapPanel":
+        n = (self.window_ms[1] - self.window_ms[0]) / self.bin_ms
+        if n > MAX_BINS or abs(n - round(n)) > 1e-6 * max(1.0, n):
+            raise ValueError(f"window_ms [{self.window_ms[0]:g}, {self.window_ms[1]:g}] must hold a whole number "
+                             f"of bins, at most {MAX_BINS} ({n:.3g} bins of {self.bin_ms:g} ms)")
+        baseline = self.baseline_ms or (self.window_ms[0], 0.0)
+        if self.scale == "z_score" and not (self.window_ms[0] <= baseline[0] and baseline[1] <= 0.0
+                                            and (baseline[1] - baseline[0]) >= 2 * self.bin_ms - 1e-9):
+            raise ValueError(f"scale = 'z_score' needs a baseline of at least two bins inside window_ms, ending by "
+                             f"onset (0 ms): got baseline {list(baseline)} with {self.bin_ms:g}-ms bins")
+        if not (self.window_ms[0] <= self.response_ms[0] < self.response_ms[1] <= self.window_ms[1]):
+            raise ValueError(f"response_ms must lie inside window_ms, got {list(self.response_ms)}")
+        if (self.sort_by == "table") != (self.sort_column is not None):
+            raise ValueError("sort_by = 'table' sorts by a column of the per-unit table: name it with sort_column "
+                             "(and set sort_column only with sort_by = 'table')")
+        if self.unit is not None:
+            raise ValueError("a population heatmap shows several units: use units = [...] or units = 'all'")
+        return self
+
+    def windows(self) -> dict[str, tuple[float, float]]:
+        return {"window_ms": self.window_ms, "response_ms": self.response_ms} | (
+            {"baseline_ms": self.baseline_ms} if self.baseline_ms else {})
+
+
+PANEL_MODELS = (RasterPanel, PsthPanel, LevelResponsePanel, LatencyPanel, PopulationHeatmapPanel)
 
 Panel = Annotated[Union[PANEL_MODELS], Field(discriminator="kind")]
 
