@@ -17,6 +17,7 @@ EXTRAS: dict[str, str] = {   # importable module -> the extra of pyproject.toml 
     "h5py": "nwb",
     "distributed": "cluster",
     "watchfiles": "preview",
+    "pytest": "test",
 }
 
 

@@ -15,15 +15,17 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Callable, Literal
 
-from figspec.compute import latency, level_response, population_heatmap, psth, raster
+from figspec.compute import latency, level_response, population_heatmap, population_response, psth, raster
 from figspec.compute.describe import generic_legend, trial_rows
 from figspec.draw import latency as latency_art
 from figspec.draw import population_heatmap as population_heatmap_art
+from figspec.draw import population_response as population_response_art
 from figspec.draw import level_response as level_response_art
 from figspec.draw import psth as psth_art
 from figspec.draw import raster as raster_art
 from figspec.draw.colours import marked_categories
-from figspec.spec.panels import LatencyPanel, LevelResponsePanel, PopulationHeatmapPanel, PsthPanel, RasterPanel
+from figspec.spec.panels import (LatencyPanel, LevelResponsePanel, PopulationHeatmapPanel, PopulationResponsePanel,
+                                 PsthPanel, RasterPanel)
 
 
 def unchanged(rec, panel, levels):
@@ -82,6 +84,10 @@ PANEL_KINDS: dict[str, PanelKind] = {
     "population_heatmap": PanelKind(PopulationHeatmapPanel, population_heatmap.compute, population_heatmap_art.draw,
                                     population_heatmap_art.labels, "single", check=population_heatmap.check,
                                     statistics=population_heatmap.statistics, legend=population_heatmap.legend),
+    "population_response": PanelKind(PopulationResponsePanel, population_response.compute,
+                                     population_response_art.draw, population_response_art.labels, "single",
+                                     limits=population_response_art.limits, check=population_response.check,
+                                     statistics=population_response.statistics, legend=population_response.legend),
 }
 
 

@@ -24,6 +24,7 @@ from pathlib import Path
 
 from figspec import pipeline
 from figspec.errors import UserError
+from figspec.optional import require
 from figspec.output.compare import rms_difference
 from figspec.output.files import write_all
 from figspec.output.names import output_stem
@@ -63,9 +64,8 @@ def assert_figure_matches(spec: str | Path, baseline_dir: str | Path, tolerance:
     ``<stem>.baseline.png`` and, on failure, ``<stem>.difference.png`` under ``results_dir``;
     fails the test when the figure differs by more than ``tolerance``, the baseline is missing
     or the spec has a problem."""
-    import pytest
-
     __tracebackhide__ = True                 # failures are reported at the test's line
+    pytest = require("pytest", "figspec.testing")
     caller = Path(inspect.stack()[1].filename)
     spec, baselines, results = located(spec, caller), located(baseline_dir, caller), located(results_dir, caller)
     try:

@@ -42,6 +42,8 @@ class UnitPoints:
     points: np.ndarray
     statistic: Callable | None = None
     floor: np.ndarray | None = None
+    sigma: np.ndarray | None = None          # each point's SE when given directly (a summary across units)
+    why_no_interval: str = "one value per level, so there are no trials to resample"
 
 
 def empty_params() -> pd.DataFrame:
@@ -112,7 +114,8 @@ def fit_unit(model: str, data: UnitPoints, scale: str, confidence: float, resamp
     if data.levels.size <= n_par:
         reason = f"{data.levels.size} levels for {n_par} parameters: at least {n_par + 1} are needed"
         return FitResult(model, names, empty, empty, empty, "failed", (reason,)), np.empty((0, n_par))
-    sigma = _sigma(data.values, data.floor) if data.floor is not None else None
+    sigma = data.sigma if data.sigma is not None else (_sigma(data.values, data.floor) if data.floor is not None
+                                                        else None)
     estimate = least_squares(model, data.levels, data.points, sigma, scale)
     if estimate is None:
         return FitResult(model, names, empty, empty, empty, "failed", ("the optimiser found no fit",)), \
@@ -120,7 +123,7 @@ def fit_unit(model: str, data: UnitPoints, scale: str, confidence: float, resamp
     goodness = goodness_of_fit(f, estimate, data.levels, data.points, sigma)
     if data.values is None:
         refits, failed = np.empty((0, n_par)), 0.0
-        extra = ("no interval: one value per level, so there are no trials to resample",)
+        extra = (f"no interval: {data.why_no_interval}",)
     else:
         refits, failed = bootstrap(model, data, estimate, scale, resamples, seed, unit)
         extra = ()

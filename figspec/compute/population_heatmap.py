@@ -140,8 +140,10 @@ def check(rec: Recording, panel: PopulationHeatmapPanel, levels: LevelSpec) -> l
 
 def statistics(panel: PopulationHeatmapPanel, tables: dict[str, pd.DataFrame]) -> list[list]:
     first = tables["matrix"].drop_duplicates("unit")
-    rows = [["population", panel.name, r.unit, None, f"sort_key ({r.sort_by})", r.sort_key, None, None,
-             f"rank {r.rank}" + (f"; {r.note}" if r.note else "")] for r in first.itertuples()]
+    numeric = first["sort_key"].dtype.kind in "iuf"          # statistics values are numbers (a name is in the note)
+    rows = [["population", panel.name, r.unit, None, f"sort_key ({r.sort_by})", r.sort_key if numeric else None,
+             None, None, f"rank {r.rank}" + ("" if numeric else f" by {r.sort_key}") + (f"; {r.note}" if r.note else "")]
+            for r in first.itertuples()]
     return rows + trial_rows(panel, {"trials": tables["trials"]})
 
 

@@ -208,7 +208,39 @@ class PopulationHeatmapPanel(PanelBase):
             {"baseline_ms": self.baseline_ms} if self.baseline_ms else {})
 
 
-PANEL_MODELS = (RasterPanel, PsthPanel, LevelResponsePanel, LatencyPanel, PopulationHeatmapPanel)
+class PopulationResponsePanel(SummaryPanel):
+    """``kind = "population_response"``: the response vs level of many units at once. Each unit's
+    mean evoked rate per level (less its baseline rate with ``subtract_baseline``) is divided by
+    its own maximum over the levels (``normalise = "max"``) or by the maximum of its own
+    Naka-Rushton fit (``"fit_max"``, R0 + Rmax); the population point per level is the mean ± SEM
+    across units (``summary = "mean_sem"``) or the median and interquartile range
+    (``"median_iqr"``), with a Naka-Rushton fit to the population points (``fit``). Units whose
+    own fit fails (with ``fit_max``) are left out (``failed_fits = "leave_out"``) or normalised
+    to their maximum instead (``"use_max"``), and counted either way."""
+
+    kind: Literal["population_response"]
+    units: Annotated[list[str], Field(min_length=2)] | Literal["all"] = "all"
+    measure: Literal["spikes_per_s"] = "spikes_per_s"
+    subtract_baseline: bool = True
+    normalise: Literal["max", "fit_max"] = "max"
+    summary: Literal["mean_sem", "median_iqr"] = "mean_sem"
+    fit: Literal["none", "naka_rushton"] = "naka_rushton"
+    failed_fits: Literal["leave_out", "use_max"] = "leave_out"
+
+    @model_validator(mode="after")
+    def _population(self) -> "PopulationResponsePanel":
+        if self.normalise == "fit_max" and self.fit == "none":
+            raise ValueError("normalise = 'fit_max' divides by each unit's fitted maximum: set fit = 'naka_rushton'")
+        if self.unit is not None:
+            raise ValueError("a population response shows several units: use units = [...] or units = 'all'")
+        return self
+
+    def fitted_model(self) -> str | None:
+        return None if self.fit == "none" else self.fit
+
+
+PANEL_MODELS = (RasterPanel, PsthPanel, LevelResponsePanel, LatencyPanel, PopulationHeatmapPanel,
+                PopulationResponsePanel)
 
 Panel = Annotated[Union[PANEL_MODELS], Field(discriminator="kind")]
 
