@@ -80,7 +80,7 @@ def write_nwb(path: Path, names, unit_sorted, time_sorted, start, level) -> None
         io.write(nwb)
 
 
-SPEC = """[figure]
+HEAD = """[figure]
 title = "bench"
 width_mm = 120
 height_mm = 100
@@ -93,7 +93,9 @@ unit = "dB SPL"
 
 [stimulus]
 per_trial = true
+"""
 
+SPEC = HEAD + """
 [sources.big]
 spikes = "{spikes}"
 trials = "{trials}"
@@ -130,20 +132,7 @@ unit = "{unit}"
 window_ms = [-100, 300]
 """
 
-NWB = """[figure]
-title = "bench"
-width_mm = 120
-height_mm = 100
-formats = ["png"]
-png_dpi = 100
-
-[levels]
-quantity = "Sound level"
-unit = "dB SPL"
-
-[stimulus]
-per_trial = true
-
+NWB = HEAD + """
 [sources.big]
 format = "nwb"
 file = "{file}"

@@ -86,6 +86,16 @@ bin_ms = 10
 """
 
 
+# the demo recording as one source, for specs written in tests (@DATA@ is the demo data folder)
+DEMO_SOURCE = """[sources.demo]
+spikes = "@DATA@/spikes.csv"
+trials = "@DATA@/trials.csv"
+clock = "session"
+spike_columns = { unit = "unit", trial = "trial", time = "time_s" }
+trial_columns = { trial = "trial", level = "level_db", onset = "onset_s", offset = "offset_s", start = "start_s", stop = "stop_s" }
+"""
+
+
 def draw_now(fig):
     """Attach an Agg canvas and draw, so the layout engine has run and extents are final."""
     from matplotlib.backends.backend_agg import FigureCanvasAgg

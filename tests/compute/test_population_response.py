@@ -10,7 +10,7 @@ import pytest
 
 from figspec import pipeline
 
-from helpers import SPECS, write_spec
+from helpers import DEMO_SOURCE, SPECS, write_spec
 
 SPEC = """
 [figure]
@@ -26,13 +26,7 @@ scale = "pressure_db"
 [stimulus]
 per_trial = true
 
-[sources.demo]
-spikes = "@DATA@/spikes.csv"
-trials = "@DATA@/trials.csv"
-clock = "session"
-spike_columns = { unit = "unit", trial = "trial", time = "time_s" }
-trial_columns = { trial = "trial", level = "level_db", onset = "onset_s", offset = "offset_s", start = "start_s", stop = "stop_s" }
-
+""" + DEMO_SOURCE + """
 [[panels]]
 name = "pop"
 kind = "population_response"
