@@ -15,7 +15,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Callable, Literal
 
-from figspec.compute import latency, level_response, population_heatmap, population_response, psth, raster
+from figspec.compute import (latency, level_response, population_heatmap, population_response, psth, raster,
+                             unit_distribution)
 from figspec.compute.describe import generic_legend, trial_rows
 from figspec.draw import latency as latency_art
 from figspec.draw import population_heatmap as population_heatmap_art
@@ -23,9 +24,10 @@ from figspec.draw import population_response as population_response_art
 from figspec.draw import level_response as level_response_art
 from figspec.draw import psth as psth_art
 from figspec.draw import raster as raster_art
+from figspec.draw import unit_distribution as unit_distribution_art
 from figspec.draw.colours import marked_categories
 from figspec.spec.panels import (LatencyPanel, LevelResponsePanel, PopulationHeatmapPanel, PopulationResponsePanel,
-                                 PsthPanel, RasterPanel)
+                                 PsthPanel, RasterPanel, UnitDistributionPanel)
 
 
 def unchanged(rec, panel, levels):
@@ -88,6 +90,9 @@ PANEL_KINDS: dict[str, PanelKind] = {
                                      population_response_art.draw, population_response_art.labels, "single",
                                      limits=population_response_art.limits, check=population_response.check,
                                      statistics=population_response.statistics, legend=population_response.legend),
+    "unit_distribution": PanelKind(UnitDistributionPanel, unit_distribution.compute, unit_distribution_art.draw,
+                                   unit_distribution_art.labels, "single", check=unit_distribution.check,
+                                   statistics=unit_distribution.statistics, legend=unit_distribution.legend),
 }
 
 

@@ -27,14 +27,15 @@ def spec_with_every_kind() -> str:
     """The small spec with one more panel per registered kind, each with only its required keys."""
     text = SMALL_SPEC.replace("[stimulus]", '[levels]\nquantity = "Sound level"\nunit = "dB SPL"\n'
                                             'scale = "pressure_db"\n\n[stimulus]')
-    text = text.replace("width_mm = 100", "width_mm = 183").replace("height_mm = 120", "height_mm = 160")
-    columns = (len(KINDS) + 1) // 2 + 2      # raster and rate, then two kinds per column
-    text = text.replace("[stimulus]", f"[layout]\nrows = 2\ncolumns = {columns}\n\n[stimulus]")
-    text = text.replace('name = "spikes"', 'name = "spikes"\ncell = [1, 1]\nspan = [2, 1]')
-    text = text.replace('name = "rate"', 'name = "rate"\ncell = [1, 2]\nspan = [2, 1]')
+    rows = 3                                 # raster and rate span the rows, then three kinds per column
+    columns = -(-len(KINDS) // rows) + 2
+    text = text.replace("width_mm = 100", f"width_mm = {60 * columns}").replace("height_mm = 120", "height_mm = 200")
+    text = text.replace("[stimulus]", f"[layout]\nrows = {rows}\ncolumns = {columns}\n\n[stimulus]")
+    text = text.replace('name = "spikes"', f'name = "spikes"\ncell = [1, 1]\nspan = [{rows}, 1]')
+    text = text.replace('name = "rate"', f'name = "rate"\ncell = [1, 2]\nspan = [{rows}, 1]')
     for i, kind in enumerate(KINDS):
         units = 'units = "all"' if population(kind) else 'unit = "u2"'
-        text += f'\n[[panels]]\nname = "every_{kind}"\nkind = "{kind}"\n{units}\ncell = [{i % 2 + 1}, {i // 2 + 3}]\n'
+        text += f'\n[[panels]]\nname = "every_{kind}"\nkind = "{kind}"\n{units}\ncell = [{i % rows + 1}, {i // rows + 3}]\n'
     return text
 
 

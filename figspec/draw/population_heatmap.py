@@ -23,7 +23,7 @@ if TYPE_CHECKING:
 
 MAX_NAMED_ROWS = 30          # above this, rows are numbered every few units instead of named
 COLOUR_LABELS = {"z_score": "Rate (z-score vs baseline)", "peak": "Rate (fraction of unit's peak)"}
-SORT_LABELS = {"latency": "first-spike latency", "peak_time": "peak time", "name": "name"}
+SORT_LABELS = {"latency": "latency", "peak_time": "peak time", "name": "name"}
 
 
 def matrix(table: pd.DataFrame) -> tuple[np.ndarray, list[str]]:

@@ -239,8 +239,43 @@ class PopulationResponsePanel(SummaryPanel):
         return None if self.fit == "none" else self.fit
 
 
+class UnitDistributionPanel(SummaryPanel):
+    """``kind = "unit_distribution"``: one per-unit quantity across units, as points (one per unit)
+    with the median and interquartile range, grouped by source (session) with ``group_by =
+    "source"``. Quantities come from each unit's own response-level analysis (as
+    ``level_response`` computes it, with ``response_ms``, ``baseline_ms``, ``subtract_baseline``):
+    the Naka-Rushton parameters ``L50``, ``n``, ``Rmax``, ``R0``, or ``threshold`` (the lowest
+    level whose corrected test against baseline is significant). Units whose fit is poorly
+    constrained are drawn open and counted (``poorly_constrained = "apart"``), left out and
+    counted (``"leave_out"``), or drawn as the others (``"include"``); units whose fit failed have no
+    value and are counted. With two groups, ``test = "mann_whitney"`` compares them (two-sided
+    Mann-Whitney U) with the rank-biserial correlation as effect size and its bootstrap interval."""
+
+    kind: Literal["unit_distribution"]
+    units: Annotated[list[str], Field(min_length=2)] | Literal["all"] = "all"
+    quantity: Literal["L50", "n", "Rmax", "R0", "threshold"] = "L50"
+    group_by: Literal["none", "source"] = "none"
+    poorly_constrained: Literal["apart", "leave_out", "include"] = "apart"
+    test: Literal["mann_whitney", "none"] = "none"
+    subtract_baseline: bool = False
+    measure: Literal["spikes_per_s"] = "spikes_per_s"
+    zero_differences: Literal["drop", "keep", "split"] = "drop"
+    alpha: Probability = 0.05
+
+    @model_validator(mode="after")
+    def _groups(self) -> "UnitDistributionPanel":
+        if self.test != "none" and self.group_by == "none":
+            raise ValueError("a test compares groups: set group_by = 'source' (two pooled sources)")
+        if self.unit is not None:
+            raise ValueError("a distribution across units shows several units: use units = [...] or units = 'all'")
+        return self
+
+    def fitted_model(self) -> str | None:
+        return None if self.quantity == "threshold" else "naka_rushton"
+
+
 PANEL_MODELS = (RasterPanel, PsthPanel, LevelResponsePanel, LatencyPanel, PopulationHeatmapPanel,
-                PopulationResponsePanel)
+                PopulationResponsePanel, UnitDistributionPanel)
 
 Panel = Annotated[Union[PANEL_MODELS], Field(discriminator="kind")]
 

@@ -1,0 +1,160 @@
+"""``unit_distribution``: one per-unit quantity across units, grouped by session.
+
+Each unit's quantity comes from its own response-level analysis, made exactly as a
+``level_response`` panel makes it (Naka-Rushton parameters with bootstrap intervals over
+trials, or the threshold by test). The summary per group is the median and interquartile range
+(numpy.percentile, linear interpolation). Two groups are compared with a two-sided Mann-Whitney U
+test (scipy.stats.mannwhitneyu, the reference implementation), the effect size being the
+rank-biserial correlation r = 2U / (n1 n2) - 1 (Kerby 2014, Compr Psychol 3:11; equal to Cliff's
+delta) with a percentile bootstrap interval over units, resampled within each group.
+"""
+
+from __future__ import annotations
+
+import warnings
+
+import numpy as np
+
+from figspec.compute import level_response
+from figspec.compute.describe import About, shown_unit, trial_rows
+from figspec.data.recording import Recording
+from figspec.errors import FigspecWarning, Problem
+from figspec.optional import deferred
+from figspec.spec.models import LevelSpec
+from figspec.spec.panels import LevelResponsePanel, UnitDistributionPanel
+
+pd = deferred("pandas")
+
+FEWEST_PER_GROUP = 3       # common practice: with fewer, a two-sided Mann-Whitney U test cannot reach p < 0.05 anyway
+SHARED = ("levels", "response_ms", "baseline_ms", "subtract_baseline", "measure", "zero_differences", "alpha",
+          "correction", "confidence", "resamples", "fit_resamples", "seed", "level_axis")
+
+
+def _units(rec: Recording, panel: UnitDistributionPanel) -> list[str]:
+    return panel.unit_names() or list(rec.units)
+
+
+def analysis_panel(rec: Recording, panel: UnitDistributionPanel) -> LevelResponsePanel:
+    """The level_response analysis every unit's quantity comes from."""
+    fields = {k: getattr(panel, k) for k in SHARED}
+    return LevelResponsePanel.model_validate({**fields, "name": panel.name, "kind": "level_response",
+                                              "units": _units(rec, panel), "test": "wilcoxon",
+                                              "fit": "none" if panel.quantity == "threshold" else "naka_rushton"})
+
+
+def group_of(unit: str, panel: UnitDistributionPanel) -> str:
+    if panel.group_by == "source" and "/" in unit:
+        return unit.split("/", 1)[0]
+    return panel.source if isinstance(panel.source, str) else "all units"
+
+
+def compute(rec: Recording, panel: UnitDistributionPanel, levels: LevelSpec) -> dict[str, pd.DataFrame]:
+    """``units`` (unit, group, value, value_unit, fit_status, shown: filled / open / left out / no
+    value), ``summary`` (group, n_units, median, q25, q75), ``trials`` (unit, level, n_trials)
+    and, with a test, ``test`` (groups, n, U, p, rank-biserial r with its interval)."""
+    with warnings.catch_warnings():                 # each unit's fit is reported in the table, counted in the legend
+        warnings.simplefilter("ignore", FigspecWarning)
+        analysed = level_response.compute(rec, analysis_panel(rec, panel), levels)
+    params = analysed["params"]
+    key = "threshold_by_test" if panel.quantity == "threshold" else panel.quantity
+    rows = []
+    for unit in _units(rec, panel):
+        mine = params[params["unit"] == unit].set_index("quantity")
+        value = float(mine.loc[key, "value"]) if key in mine.index else np.nan
+        status = "ok" if panel.quantity == "threshold" else str(mine.loc["status", "note"]).split(":")[0] \
+            if "status" in mine.index else "failed"
+        if not np.isfinite(value) or status == "failed":
+            shown = "no value"
+        elif status == "poorly constrained" and panel.poorly_constrained != "include":
+            shown = "open" if panel.poorly_constrained == "apart" else "left out"
+        else:
+            shown = "filled"
+        value_unit = str(mine.loc[key, "unit_of_value"]) if key in mine.index else ""
+        rows.append([unit, group_of(unit, panel), value, value_unit, status, shown])
+    units = pd.DataFrame(rows, columns=["unit", "group", "value", "value_unit", "fit_status", "shown"])
+    used = units[units["shown"].isin(["filled", "open"] if panel.poorly_constrained == "apart" else ["filled"])]
+    summary = pd.DataFrame([[g, len(v), *np.percentile(v, [50, 25, 75])] if len(v) else [g, 0, np.nan, np.nan, np.nan]
+                            for g, v in ((g, used.loc[used["group"] == g, "value"].to_numpy(dtype=float))
+                                         for g in units["group"].unique())],
+                           columns=["group", "n_units", "median", "q25", "q75"])
+    out = {"units": units, "summary": summary, "trials": analysed["points"][["unit", "level", "n_trials"]]}
+    if panel.test == "mann_whitney":
+        out["test"] = mann_whitney(used, panel)
+    return out
+
+
+def rank_biserial(a: np.ndarray, b: np.ndarray) -> float:
+    """2U/(n1 n2) - 1 with U the Mann-Whitney statistic of ``a`` (ties count one half)."""
+    from scipy.stats import mannwhitneyu
+
+    return float(2 * mannwhitneyu(a, b).statistic / (a.size * b.size) - 1)
+
+
+def mann_whitney(used: pd.DataFrame, panel: UnitDistributionPanel) -> pd.DataFrame:
+    from scipy.stats import mannwhitneyu
+
+    from figspec.compute.resampling import generator
+
+    (name_a, a), (name_b, b) = [(g, v["value"].to_numpy(dtype=float)) for g, v in used.groupby("group", sort=False)]
+    result = mannwhitneyu(a, b, alternative="two-sided")
+    rng = generator(panel.seed, "unit_distribution", 0.0)
+    boot = [rank_biserial(rng.choice(a, a.size), rng.choice(b, b.size)) for _ in range(panel.resamples)]
+    tail = (1 - panel.confidence) / 2
+    low, high = np.quantile(boot, [tail, 1 - tail])
+    return pd.DataFrame([{"group_a": name_a, "group_b": name_b, "n_a": a.size, "n_b": b.size,
+                          "test": "Mann-Whitney U, two-sided", "U": float(result.statistic), "p": float(result.pvalue),
+                          "effect": "rank-biserial r", "r": rank_biserial(a, b), "r_ci_low": float(low),
+                          "r_ci_high": float(high), "confidence": panel.confidence}])
+
+
+def check(rec: Recording, panel: UnitDistributionPanel, levels: LevelSpec) -> list[Problem]:
+    units = _units(rec, panel)
+    if len(set(units)) < 2:
+        return [Problem(f"a distribution across units needs at least two units; it has {len(set(units))}", ("units",))]
+    if panel.test != "none":
+        groups = pd.Series([group_of(u, panel) for u in units]).value_counts()
+        if len(groups) != 2:
+            return [Problem(f"test = 'mann_whitney' compares two groups; the panel's units form {len(groups)} "
+                            f"({', '.join(groups.index)})", ("test",))]
+        few = groups[groups < FEWEST_PER_GROUP]
+        if len(few):
+            return [Problem(f"test = 'mann_whitney' needs at least {FEWEST_PER_GROUP} units per group; "
+                            + ", ".join(f"{g} has {n}" for g, n in few.items()), ("test",))]
+    return []
+
+
+def statistics(panel: UnitDistributionPanel, tables: dict[str, pd.DataFrame]) -> list[list]:
+    rows = trial_rows(panel, {"trials": tables["trials"]})
+    rows += [["population", panel.name, r.unit, None, panel.quantity, r.value, None, None,
+             f"{r.group}; fit {r.fit_status}; {r.shown}"] for r in tables["units"].itertuples()]
+    rows += [["population", panel.name, r.group, None, f"median {panel.quantity}", r.median, r.q25, r.q75,
+              f"n = {r.n_units} units; interval: interquartile range"] for r in tables["summary"].itertuples()]
+    for r in tables.get("test", pd.DataFrame()).itertuples():
+        rows += [["test", panel.name, f"{r.group_a} vs {r.group_b}", None, "U", r.U, None, None, r.test],
+                 ["test", panel.name, f"{r.group_a} vs {r.group_b}", None, "p", r.p, None, None,
+                  f"n = {r.n_a} and {r.n_b} units"],
+                 ["test", panel.name, f"{r.group_a} vs {r.group_b}", None, "rank-biserial r", r.r, r.r_ci_low,
+                  r.r_ci_high, f"{r.confidence:.0%} percentile bootstrap over units"]]
+    return rows
+
+
+def legend(panel: UnitDistributionPanel, tables: dict[str, pd.DataFrame], about: About) -> str:
+    units, summary = tables["units"], tables["summary"]
+    what = "threshold by test (the lowest level whose Holm-corrected test against baseline is significant)" \
+        if panel.quantity == "threshold" else f"Naka–Rushton {panel.quantity} of each unit's own fit"
+    counts = units["shown"].value_counts()
+    groups = "; ".join(f"{r.group}: n = {r.n_units}" for r in summary.itertuples())
+    text = (f"- *{about.label}*: {what} (response {panel.response_ms[0]:g}–{panel.response_ms[1]:g} ms after onset), "
+            f"one point per unit ({', '.join(shown_unit(u, about) for u in units['unit'])}); bars: median and "
+            f"interquartile range ({groups}).")
+    if counts.get("open", 0):
+        text += f" Open points: {counts['open']} units whose fit is poorly constrained (included in the summary)."
+    if counts.get("left out", 0):
+        text += f" {counts['left out']} units with a poorly constrained fit left out."
+    if counts.get("no value", 0):
+        text += f" {counts['no value']} units without a value (a failed fit, or no significant level)."
+    for r in tables.get("test", pd.DataFrame()).itertuples():
+        text += (f" {r.group_a} vs {r.group_b}: two-sided Mann–Whitney U = {r.U:g}, p = {r.p:.3g} (n = {r.n_a} and "
+                 f"{r.n_b} units); rank-biserial r = {r.r:.2f} ({r.confidence:.0%} bootstrap interval over units "
+                 f"{r.r_ci_low:.2f} to {r.r_ci_high:.2f}).")
+    return text
