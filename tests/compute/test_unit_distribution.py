@@ -12,7 +12,7 @@ from scipy.stats import mannwhitneyu
 from figspec import pipeline
 from figspec.errors import UserError
 
-from helpers import write_spec
+from helpers import DEMO_SOURCE, write_spec
 
 SPEC = """[figure]
 title = "t"
@@ -30,35 +30,8 @@ per_trial = true
 [analysis]
 response_ms = [0, 60]
 baseline_ms = [-60, 0]
-
-[sources.day1]
-spikes = "@DATA@/spikes.csv"
-trials = "@DATA@/trials.csv"
-clock = "session"
-spike_columns = { unit = "unit", trial = "trial", time = "time_s" }
-
-[sources.day1.trial_columns]
-trial = "trial"
-level = "level_db"
-onset = "onset_s"
-offset = "offset_s"
-start = "start_s"
-stop = "stop_s"
-
-[sources.day2]
-spikes = "@DATA@/day2_spikes.csv"
-trials = "@DATA@/day2_trials.csv"
-clock = "session"
-spike_columns = { unit = "unit", trial = "trial", time = "time_s" }
-
-[sources.day2.trial_columns]
-trial = "trial"
-level = "level_db"
-onset = "onset_s"
-offset = "offset_s"
-start = "start_s"
-stop = "stop_s"
-
+""" + "".join(DEMO_SOURCE.replace("[sources.demo]", f"[sources.{name}]").replace("@DATA@/", f"@DATA@/{prefix}")
+              for name, prefix in (("day1", ""), ("day2", "day2_"))) + """
 [[panels]]
 name = "l50"
 kind = "unit_distribution"
