@@ -132,10 +132,10 @@ def unit_codes(values, layout: Layout) -> tuple[np.ndarray, np.ndarray, np.ndarr
         distinct, codes = factorize(np.where(missing(values), "", np.asarray(values).astype(str)))
     unread = distinct[:0]
     if isinstance(values, Coded):           # a reader that kept some units' rows: drop the names of the others
-        check_unit_names(text(distinct[~missing(distinct)]), layout)
         present = np.bincount(codes, minlength=distinct.size) > 0
         if not present.all():
             unread = text(distinct[~present & ~missing(distinct)])
+            check_unit_names(unread, layout)    # the names read are checked with the rest of the assembly
             distinct, codes = distinct[present], (np.cumsum(present) - 1)[codes]
     empty = np.flatnonzero(missing(distinct))
     if empty.size:

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import codecs
 import csv
+import itertools
 from pathlib import Path
 
 import numpy as np
@@ -193,21 +194,22 @@ def _stream(path: Path, delimiter: str, kinds: dict[str, str], unit_column: str 
     parts: dict[str, list] = {c: [] for c in kinds}
     names: dict[str, dict[str, int]] = {c: {} for c in kinds if kinds[c] == "text"}
     wanted = None if units is None else {u.strip() for u in units}
+    kept: list[bool] = []
     rows = 0
     try:
         reader = pcsv.open_csv(path, read_options=pcsv.ReadOptions(block_size=BLOCK_BYTES, use_threads=False),
                                parse_options=pcsv.ParseOptions(delimiter=delimiter), convert_options=convert)
         for batch in reader:
-            arrays = {c: batch.column(i) for i, c in enumerate(batch.schema.names)}
+            values = {c: _codes(batch.column(i), names[c]) if c in names else plain(batch.column(i))
+                      for i, c in enumerate(batch.schema.names)}
             keep = None
-            if unit_column is not None:
-                dictionary = arrays[unit_column].dictionary.to_pylist()
-                hit = np.array([d.strip() in wanted or not d.strip() for d in dictionary] + [False])
-                keep = hit[_indices(arrays[unit_column], len(dictionary))]
+            if unit_column is not None:                # whether each unit name met so far is kept, by its code
+                kept += [n.strip() in wanted or not n.strip()
+                         for n in itertools.islice(names[unit_column], len(kept), None)]
+                keep = np.array(kept)[values[unit_column]]
             rows += batch.num_rows
-            for c, array in arrays.items():
-                values = _codes(array, names[c]) if c in names else plain(array)
-                parts[c].append(values if keep is None else values[keep])
+            for c, v in values.items():
+                parts[c].append(v if keep is None else v[keep])
     except pa.ArrowInvalid as err:
         message = str(err)
         if "conversion error" in message and "UTF8" not in message:

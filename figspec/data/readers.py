@@ -69,12 +69,13 @@ def load_source(src: SourceBase, folder: Path, loc: Loc, units: set[str] | None 
     """
     reading = widened(src, set(where_columns))
     planned = plans(reading, loc)
-    table = None
+    table = meeting = None
     if src.unit_table is not None:
         path = folder / src.unit_files()["units"]
         table = unit_table.read_unit_table(path, src.unit_table.id, loc + ("unit_table",))
         if src.keep_units:
-            candidates = set(table[src.unit_table.id][unit_table.rows_meeting(table, src.keep_units, path, loc)].tolist())
+            meeting = unit_table.rows_meeting(table, src.keep_units, path, loc)
+            candidates = set(table[src.unit_table.id][meeting].tolist())
             units = candidates if units is None else {u for u in units if u.strip() in candidates}
     if frames is not None:
         spikes = rename(frames[0], planned[0], "the spike table")
@@ -90,9 +91,9 @@ def load_source(src: SourceBase, folder: Path, loc: Loc, units: set[str] | None 
         ids = table[src.unit_table.id].tolist()
         rec = replace(rec, unit_properties={column: dict(zip(ids, values.tolist())) for column, values in table.items()
                                             if column != src.unit_table.id})
-    if table is not None and src.keep_units:
-        choice = unit_table.choose(table, src.unit_table.id, src.keep_units, list(rec.all_units),
-                                   folder / src.unit_files()["units"], loc)
+    if meeting is not None:
+        choice = unit_table.choose(table[src.unit_table.id], meeting, src.keep_units, list(rec.all_units),
+                                   folder / src.unit_files()["units"], loc, src.unit_table.id)
         rec = rec.keep_units(choice.kept, choice)
     return rec
 

@@ -209,8 +209,7 @@ def _unit_rule(out: Survey) -> None:
     good = next((label for label, _ in table.labels if label.lower() in ("good", "su", "single", "single_unit")), None)
     if good is None:
         return
-    frame = pd.read_csv(table.path, sep="\t" if table.path.suffix == ".tsv" else ",", dtype=str)
-    chosen = set(frame.loc[frame[table.label].str.strip() == good, table.id].str.strip())
+    chosen = {unit for unit, label in table.labelled if label == good}
     out.units = [u for u in out.units if u[0] in chosen] + [u for u in out.units if u[0] not in chosen]
     counts = ", ".join(f"{n} {label}" for label, n in table.labels)
     out.keep_units = Guess({table.label: good}, f"{table.path.name} labels units ({counts})",

@@ -77,6 +77,7 @@ class UnitTableFound:
     id: str
     label: str | None = None
     labels: tuple[tuple[str, int], ...] = ()          # (label, units), most first
+    labelled: tuple[tuple[str, str], ...] = ()        # (unit id, label) of every row
 
 
 @dataclass

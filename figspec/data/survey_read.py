@@ -107,5 +107,6 @@ def find_unit_table(folder: Path, units: set[str]) -> UnitTableFound | None:
         label = next((lower[n] for n in LABEL_NAMES if n in lower), None)
         counts = frame[label].str.strip().value_counts() if label else None
         labels = tuple((str(k), int(v)) for k, v in counts.items()) if counts is not None else ()
-        return UnitTableFound(candidate, ids, label, labels)
+        labelled = tuple(zip(frame[ids].str.strip(), frame[label].str.strip())) if label else ()
+        return UnitTableFound(candidate, ids, label, labels, labelled)
     return None

@@ -95,17 +95,17 @@ def rows_meeting(table: dict[str, np.ndarray], rules: dict, path: Path, loc: Loc
     return hit
 
 
-def choose(table: dict[str, np.ndarray], id_column: str, rules: dict, data_units: list[str], path: Path,
-           loc: Loc) -> UnitChoice:
-    """The units of ``data_units`` that the table's rows meeting every rule name."""
-    ids = table[id_column]
+def choose(ids: np.ndarray, meeting: np.ndarray, rules: dict, data_units: list[str], path: Path, loc: Loc,
+           id_column: str) -> UnitChoice:
+    """The units of ``data_units`` named by the table rows ``meeting`` marks (those that meet every
+    rule, :func:`rows_meeting`); ``ids`` is the table's id column."""
     matched = np.isin(ids, data_units)
     if not matched.any():
         raise DataError(Problem(f"no unit id of {path} ({id_column!r}) matches a unit of the data",
                                 loc + ("unit_table", "id"),
                                 f"ids {', '.join(ids[:3].tolist())}; units {', '.join(data_units[:3])}"))
-    hit = matched & rows_meeting(table, rules, path, loc)
-    kept = tuple(u for u in data_units if u in set(ids[hit].tolist()))
+    chosen = set(ids[matched & meeting].tolist())
+    kept = tuple(u for u in data_units if u in chosen)
     rule = describe(rules)
     if not kept:
         raise DataError(Problem(f"keep_units keeps no unit ({rule}; {int(matched.sum())} units of the data are in "

@@ -126,14 +126,17 @@ def write_nwb(path, spikes, trials, session_us):
         io.write(nwb)
 
 
-SPEC = """[levels]
-unit = "dB SPL"
-[stimulus]
+# the stimulus and the source, filled in with .format(source=...): shared by the specs below
+STIMULUS_AND_SOURCE = """[stimulus]
 start_ms = 0
 stop_ms = 50
 [sources.rec]
 {source}
-[[panels]]
+"""
+
+SPEC = """[levels]
+unit = "dB SPL"
+""" + STIMULUS_AND_SOURCE + """[[panels]]
 name = "spikes"
 kind = "raster"
 unit = "cell-12"
@@ -245,12 +248,7 @@ def test_a_tab_separated_file_reads_with_its_delimiter(tmp_path):
 SUMMARY_SPEC = """[levels]
 unit = "dB SPL"
 scale = "pressure_db"
-[stimulus]
-start_ms = 0
-stop_ms = 50
-[sources.rec]
-{source}
-[[panels]]
+""" + STIMULUS_AND_SOURCE + """[[panels]]
 name = "response"
 kind = "level_response"
 units = ["cell-07", "cell-12"]
