@@ -16,7 +16,9 @@ three units good beside a multi-unit cluster and a busy noise cluster); ``day2_*
 session of the same model from the next seed (for pooling sessions). ``pressure_trials.csv`` is
 the trial table with the level as sound pressure in mPa, as a rig's calibration might give it
 (20 µPa x 10^(dB/20), to two significant digits), where the lowest level is played as silence (0 mPa), for a log level axis
-with a level of 0.
+with a level of 0. ``silencing/`` holds two more sessions of 24 units each (``s1_*``, ``s2_*``), in
+which half the trials at each level also shine light that silences an input area (a ``light``
+column), with a per-unit table (sorter label, depth).
 
 Model: 270 trials (9 levels from 0 to 80 dB SPL, 30 each) in a shuffled order, one every
 600 ms (``start_s`` to ``stop_s``), each with a 50-ms noise burst about 200 ms after the start. Each unit fires as an inhomogeneous Poisson process
@@ -163,6 +165,46 @@ def write_sorter_folder(folder: Path, spikes: pd.DataFrame, trials: pd.DataFrame
     return int(samples.size)
 
 
+SILENCING_LEVELS_DB = np.arange(20.0, 81.0, 10.0)
+SILENCING_TRIALS = 15            # per level and condition
+SILENCING_UNITS = 24             # per session
+
+
+def silencing_session(seed: int) -> tuple[pd.DataFrame, pd.DataFrame, pd.DataFrame]:
+    """One invented session of many units with trials with and without light silencing an input
+    area (``light`` true/false, interleaved): (spikes, trials, units). Light scales each unit's
+    evoked rate by a gain between 0.35 and 0.95, raises its half-maximum level by 0-8 dB and
+    lengthens its latency by 0.5-2 ms; the per-unit table gives a sorter label and a depth."""
+    rng = np.random.default_rng(seed)
+    levels = np.repeat(SILENCING_LEVELS_DB, 2 * SILENCING_TRIALS)
+    light = np.tile(np.r_[np.zeros(SILENCING_TRIALS, bool), np.ones(SILENCING_TRIALS, bool)], SILENCING_LEVELS_DB.size)
+    order = rng.permutation(levels.size)
+    levels, light = levels[order], light[order]
+    start = np.arange(levels.size) * PERIOD_S
+    onset = start + PRE_S + rng.uniform(0.0, 0.010, levels.size)
+    trials = pd.DataFrame({"trial": np.arange(1, levels.size + 1), "level_db": levels, "light": light,
+                           "onset_s": onset.round(6), "offset_s": (onset + BURST_S).round(6),
+                           "start_s": start.round(6), "stop_s": (start + PERIOD_S).round(6)})
+    frames, rows = [], []
+    for i in range(SILENCING_UNITS):
+        name = f"u{i + 1:02d}"
+        spont, peak = rng.uniform(1.0, 12.0), rng.uniform(60.0, 260.0)
+        half, slope = rng.uniform(35.0, 60.0), rng.uniform(4.0, 10.0)
+        lat_hi, lat_lo = rng.uniform(16.0, 30.0), rng.uniform(5.0, 10.0)
+        gain, shift, delay = rng.uniform(0.35, 0.95), rng.uniform(0.0, 8.0), rng.uniform(0.5, 2.0)
+        parts = []
+        for lit in (False, True):
+            sub = trials[trials["light"] == lit]
+            unit = (name, spont, peak * (gain if lit else 1.0), half + (shift if lit else 0.0), slope,
+                    lat_hi + (delay if lit else 0.0), lat_lo + (delay if lit else 0.0))
+            parts.append(unit_spikes(rng, sub.reset_index(drop=True), unit))
+        frames.append(pd.concat(parts, ignore_index=True))
+        rows.append([name, "good" if rng.random() < 0.8 else "mua", float(round(rng.uniform(200.0, 1800.0), -1))])
+    spikes = pd.concat(frames, ignore_index=True).sort_values(["unit", "time_s"], kind="stable").reset_index(drop=True)
+    units = pd.DataFrame(rows, columns=["unit", "label", "depth_um"])
+    return spikes, trials, units
+
+
 def write_all(folder: Path, seed: int = SEED) -> dict[str, int]:
     """Write every demo file into ``folder``: the CSV recording, its Parquet copy, the spike
     sorter's session-clock table without trial column, the per-level trial numbering and the
@@ -183,6 +225,12 @@ def write_all(folder: Path, seed: int = SEED) -> dict[str, int]:
     write_nwb(folder / "session.nwb", spikes, trials)
     rows = {name: len(frame) for name, frame in csv.items()}
     rows["probe_sorted"] = write_sorter_folder(folder / "probe_sorted", spikes, trials, seed)
+    for k, session in enumerate(("s1", "s2")):             # two sessions of many units, with light silencing
+        sil_spikes, sil_trials, sil_units = silencing_session(seed + 100 + k)
+        (folder / "silencing").mkdir(exist_ok=True)
+        for part, frame in (("spikes", sil_spikes), ("trials", sil_trials), ("units", sil_units)):
+            frame.to_csv(folder / "silencing" / f"{session}_{part}.csv", index=False, lineterminator="\n")
+        rows[f"silencing/{session}_spikes.csv"] = len(sil_spikes)
     return rows
 
 

@@ -54,6 +54,11 @@ def no_limits(panel, tables) -> dict:
     return {}
 
 
+def no_comparison(conditions, panel, levels, tables):
+    """Default test between conditions: none (the kind draws them side by side only)."""
+    return None
+
+
 @dataclass(frozen=True)
 class PanelKind:
     model: type
@@ -69,30 +74,35 @@ class PanelKind:
     statistics: Callable = trial_rows
     legend: Callable = generic_legend
     categories: Callable = marked_categories
+    split: Callable | None = None            # (conditions, panel, levels) -> tables; default: stacked per condition
+    compare: Callable = no_comparison        # (conditions, panel, levels, tables) -> tests table (TEST_COLUMNS)
 
 
 PANEL_KINDS: dict[str, PanelKind] = {
     "raster": PanelKind(RasterPanel, raster.compute, raster_art.draw, raster_art.labels, "rows",
-                        limits=raster_art.limits, legend=raster.legend, fit_page=raster.fit_page),
+                        limits=raster_art.limits, legend=raster.legend, fit_page=raster.fit_page,
+                        split=raster.split),
     "psth": PanelKind(PsthPanel, psth.compute, psth_art.draw, psth_art.labels, "rows", limits=psth_art.limits,
                       resolve=psth.resolve, notes=psth.notes, statistics=psth.statistics, legend=psth.legend),
     "level_response": PanelKind(LevelResponsePanel, level_response.compute, level_response_art.draw,
                                 level_response_art.labels, "single", limits=level_response_art.limits,
                                 check=level_response.check, statistics=level_response.statistics,
-                                legend=level_response.legend),
+                                legend=level_response.legend, compare=level_response.compare),
     "latency": PanelKind(LatencyPanel, latency.compute, latency_art.draw, latency_art.labels, "single",
                          limits=latency_art.limits, check=latency.check, statistics=latency.statistics,
-                         legend=latency.legend),
+                         legend=latency.legend, compare=latency.compare),
     "population_heatmap": PanelKind(PopulationHeatmapPanel, population_heatmap.compute, population_heatmap_art.draw,
                                     population_heatmap_art.labels, "single", check=population_heatmap.check,
                                     statistics=population_heatmap.statistics, legend=population_heatmap.legend),
     "population_response": PanelKind(PopulationResponsePanel, population_response.compute,
                                      population_response_art.draw, population_response_art.labels, "single",
                                      limits=population_response_art.limits, check=population_response.check,
-                                     statistics=population_response.statistics, legend=population_response.legend),
+                                     statistics=population_response.statistics, legend=population_response.legend,
+                                     split=population_response.split, compare=population_response.compare),
     "unit_distribution": PanelKind(UnitDistributionPanel, unit_distribution.compute, unit_distribution_art.draw,
                                    unit_distribution_art.labels, "single", check=unit_distribution.check,
-                                   statistics=unit_distribution.statistics, legend=unit_distribution.legend),
+                                   statistics=unit_distribution.statistics, legend=unit_distribution.legend,
+                                   split=unit_distribution.split, compare=unit_distribution.compare),
 }
 
 

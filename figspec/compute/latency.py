@@ -10,6 +10,7 @@ from __future__ import annotations
 import numpy as np
 
 from figspec.compute import level_checks
+from figspec.compute.conditions import trial_tests
 from figspec.compute.describe import (OFFSET_SENTENCE, About, count_text, shown_unit, unit_text, window_columns,
                                       window_text)
 from figspec.compute.fit_tables import UnitPoints, empty_params, fit_rows, fit_sentence, fit_tables, linear_positive
@@ -234,3 +235,20 @@ def legend(panel: LatencyPanel, tables: dict[str, pd.DataFrame], about: About) -
     if panel.fit != "none":
         text += fit_sentence(panel.fit, tables["params"], about, panel.confidence)
     return text
+
+
+def compare(conditions, panel: LatencyPanel, levels: LevelSpec, tables) -> pd.DataFrame | None:
+    """First-spike latencies of the trials with a spike, per unit and level, each condition
+    against the first (two-sided Mann-Whitney U, Holm-corrected across the unit's levels). The
+    threshold and surprise methods give one latency per level, not per trial: no test."""
+    if panel.method != "first_spike":
+        return None
+    names = [c.name for c in conditions]
+    frames = []
+    for unit in panel.unit_names():
+        values = {}
+        for c in conditions:
+            for lv, times in first_spike_times(c.recording, unit, panel).items():
+                values[(c.name, float(lv))] = times[~np.isnan(times)]
+        frames.append(trial_tests(values, unit, names, panel, "first-spike latency (trials with a spike)"))
+    return pd.concat(frames, ignore_index=True)

@@ -6,6 +6,7 @@ from __future__ import annotations
 import numpy as np
 
 from figspec.compute import level_checks
+from figspec.compute.conditions import trial_tests
 from figspec.compute.describe import OFFSET_SENTENCE, About, count_text, unit_text, window_columns
 from figspec.compute.fit_tables import UnitPoints, empty_params, fit_rows, fit_sentence, fit_tables
 from figspec.compute.resampling import generator
@@ -162,3 +163,17 @@ def legend(panel: LevelResponsePanel, tables: dict[str, pd.DataFrame], about: Ab
     if panel.fit != "none":
         text += fit_sentence(panel.fit, tables["params"], about, panel.confidence)
     return text
+
+
+def compare(conditions, panel: LevelResponsePanel, levels: LevelSpec, tables) -> pd.DataFrame:
+    """Per unit and level, each condition's per-trial responses against the first condition's
+    (two-sided Mann-Whitney U, Holm-corrected across the unit's levels; see compute.conditions)."""
+    names = [c.name for c in conditions]
+    frames = []
+    for unit in panel.unit_names():
+        values = {}
+        for c in conditions:
+            lv, per_trial, _ = unit_values(c.recording, panel, unit)
+            values.update({(c.name, float(v)): x for v, x in zip(lv, per_trial)})
+        frames.append(trial_tests(values, unit, names, panel, "response"))
+    return pd.concat(frames, ignore_index=True)

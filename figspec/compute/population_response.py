@@ -15,6 +15,7 @@ import warnings
 
 import numpy as np
 
+from figspec.compute.conditions import FEWEST_PAIRS, paired_tests, stack
 from figspec.compute.describe import About, shown_unit, window_columns
 from figspec.compute.fit_tables import UnitPoints, empty_params, fit_rows, fit_tables, fitted_on
 from figspec.compute.level_response import WEIGHTING, unit_values
@@ -55,11 +56,14 @@ def divisors(by_unit: dict, panel: PopulationResponsePanel, fits: pd.DataFrame) 
     return out
 
 
-def compute(rec: Recording, panel: PopulationResponsePanel, levels: LevelSpec) -> dict[str, pd.DataFrame]:
+def compute(rec: Recording, panel: PopulationResponsePanel, levels: LevelSpec,
+            fixed: dict[str, tuple[float, str]] | None = None) -> dict[str, pd.DataFrame]:
     """``units`` (per unit and level: n_trials, response in spikes/s, divisor, normalised,
     included, note), ``points`` (per level: n_units, value, error_low, error_high, summary),
     ``fit`` (the population curve: unit "population", level, value, status) and ``params`` (the
-    population fit's and each unit's own fit's parameters, as ``level_response`` lists them)."""
+    population fit's and each unit's own fit's parameters, as ``level_response`` lists them).
+    ``fixed`` gives each unit's divisor instead (unit -> (divisor, how)): a split panel divides
+    every condition by the first condition's, so a smaller response stays smaller."""
     window_s = (panel.response_ms[1] - panel.response_ms[0]) * 1e-3
     by_unit = {}
     for unit in _units(rec, panel):
@@ -67,14 +71,15 @@ def compute(rec: Recording, panel: PopulationResponsePanel, levels: LevelSpec) -
         n = np.array([v.size for v in per_trial], dtype=float)
         by_unit[unit] = UnitPoints(lv, per_trial, np.array([v.mean() for v in per_trial]), np.mean, 1.0 / n / window_s)
     unit_params: list[list] = []
-    if panel.fit != "none":
+    if panel.fit != "none" and fixed is None:
         with warnings.catch_warnings():      # each unit's own fit is reported in the table and counted in the legend
             warnings.simplefilter("ignore", FigspecWarning)
             _, unit_params = fit_tables(by_unit, "response", panel.fit, levels, panel, "spikes/s", WEIGHTING)
-    found = divisors(by_unit, panel, pd.DataFrame(unit_params, columns=empty_params().columns))
+    found = fixed if fixed is not None else divisors(by_unit, panel,
+                                                     pd.DataFrame(unit_params, columns=empty_params().columns))
     rows = []
     for unit, data in by_unit.items():
-        divisor, how = found[unit]
+        divisor, how = found.get(unit, (np.nan, "no divisor in the first condition"))
         for level, values, point in zip(data.levels, data.values, data.points):
             rows.append([unit, float(level), values.size, float(point), divisor, point / divisor if divisor > 0 else np.nan,
                          bool(divisor > 0), how])
@@ -113,6 +118,10 @@ def check(rec: Recording, panel: PopulationResponsePanel, levels: LevelSpec) -> 
     if len(set(units)) < 2:
         return [Problem(f"a population response needs at least two different units; it has {len(set(units))}",
                         ("units",), ", ".join(dict.fromkeys(units)))]
+    if panel.conditions is not None and panel.conditions.test and len(set(units)) < FEWEST_PAIRS:
+        return [Problem(f"the paired test between conditions needs at least {FEWEST_PAIRS} units (with fewer, a "
+                        f"two-sided Wilcoxon signed-rank test cannot reach p < 0.05); the panel has {len(set(units))}",
+                        ("conditions", "test"), "true")]
     return []
 
 
@@ -157,3 +166,23 @@ def legend(panel: PopulationResponsePanel, tables: dict[str, pd.DataFrame], abou
         counts = ", ".join(f"{n} {state}" for state, n in own.value_counts().items())
         text += f" ({counts})." if counts else "."
     return text
+
+
+def split(conditions, panel: PopulationResponsePanel, levels: LevelSpec) -> dict[str, pd.DataFrame]:
+    """Every condition normalised by the first condition's divisors (each unit's maximum, or its
+    fitted maximum, in the first condition): normalising each condition by its own maximum would
+    make a halved response look unchanged."""
+    first = compute(conditions[0].recording, panel, levels)
+    units = first["units"].drop_duplicates("unit")
+    fixed = {r.unit: (float(r.divisor) if r.included else 0.0, f"{r.note} in {conditions[0].name}")
+             for r in units.itertuples()}
+    parts = [first] + [compute(c.recording, panel, levels, fixed) for c in conditions[1:]]
+    return stack(parts, [c.name for c in conditions])
+
+
+def compare(conditions, panel: PopulationResponsePanel, levels: LevelSpec, tables) -> pd.DataFrame:
+    """Per level, each condition against the first on the units' normalised responses (paired
+    two-sided Wilcoxon signed-rank across units, Holm-corrected across levels)."""
+    units = tables["units"]
+    return paired_tests(units[units["included"]], "normalised", [c.name for c in conditions], panel,
+                        "normalised response")

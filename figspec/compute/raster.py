@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from figspec.compute.conditions import stack
 from figspec.compute.describe import About, count_text, unit_text
 from figspec.compute.selection import select
 from figspec.data.recording import Recording
@@ -156,3 +157,26 @@ def legend(panel: RasterPanel, table: pd.DataFrame, about: About) -> str:
                  f"random subset (seed {panel.seed});")
     return (f"- *{about.label}*: Spike rasters (one line per trial presented, one tick per spike);{shown} "
             f"units {unit_text(table, about)}; n = {count_text(table['n_trials'])} trials per level; {window}")
+
+
+def split(conditions, panel: RasterPanel, levels: LevelSpec) -> pd.DataFrame:
+    """Each level's trials in blocks, one per condition in order (the first on top): a
+    condition's lines follow the previous conditions' at that level, ``n_trials`` counts every
+    condition's lines and ``n_condition`` the block's own."""
+    parts = [compute(c.recording, panel, levels) for c in conditions]
+    lines = ["row_start", "row_stop"] if panel.draw_as == "density" else ["row"]
+    offset = None
+    counts = [p.groupby(["unit", "level"])["n_trials"].first() for p in parts]
+    total = counts[0]
+    for n in counts[1:]:
+        total = total.add(n, fill_value=0)
+    for part, n in zip(parts, counts):
+        key = pd.MultiIndex.from_frame(part[["unit", "level"]])
+        shift = offset.reindex(key, fill_value=0).to_numpy() if offset is not None else 0
+        for column in lines:
+            part[column] = part[column].to_numpy() + shift
+        part.insert(list(part.columns).index("n_trials") + 1, "n_condition", part["n_trials"].to_numpy())
+        part["n_trials"] = total.reindex(key).to_numpy().astype(np.int64)
+        offset = n if offset is None else offset.add(n, fill_value=0)
+    table = stack(parts, [c.name for c in conditions])
+    return table.sort_values(["unit", "level", lines[0]], kind="stable", ignore_index=True)

@@ -16,6 +16,7 @@ import warnings
 import numpy as np
 
 from figspec.compute import level_response
+from figspec.compute.conditions import FEWEST_PAIRS, paired_tests, stack
 from figspec.compute.describe import About, shown_unit, trial_rows
 from figspec.data.recording import Recording
 from figspec.errors import FigspecWarning, Problem
@@ -43,6 +44,7 @@ def analysis_panel(rec: Recording, panel: UnitDistributionPanel) -> LevelRespons
 
 
 def group_of(unit: str, panel: UnitDistributionPanel) -> str:
+    """The unit's group: its source (pooled sources), else one group (conditions regroup later)."""
     if panel.group_by == "source" and "/" in unit:
         return unit.split("/", 1)[0]
     return panel.source if isinstance(panel.source, str) else "all units"
@@ -111,6 +113,10 @@ def check(rec: Recording, panel: UnitDistributionPanel, levels: LevelSpec) -> li
     units = _units(rec, panel)
     if len(set(units)) < 2:
         return [Problem(f"a distribution across units needs at least two units; it has {len(set(units))}", ("units",))]
+    if panel.conditions is not None and panel.conditions.test and len(set(units)) < FEWEST_PAIRS:
+        return [Problem(f"the paired test between conditions needs at least {FEWEST_PAIRS} units (with fewer, a "
+                        f"two-sided Wilcoxon signed-rank test cannot reach p < 0.05); the panel has {len(set(units))}",
+                        ("conditions", "test"), "true")]
     if panel.test != "none":
         groups = pd.Series([group_of(u, panel) for u in units]).value_counts()
         if len(groups) != 2:
@@ -143,18 +149,38 @@ def legend(panel: UnitDistributionPanel, tables: dict[str, pd.DataFrame], about:
     what = "threshold by test (the lowest level whose Holm-corrected test against baseline is significant)" \
         if panel.quantity == "threshold" else f"Naka–Rushton {panel.quantity} of each unit's own fit"
     counts = units["shown"].value_counts()
+    what_counts = "unit-condition values" if "condition" in units.columns else "units"
     groups = "; ".join(f"{r.group}: n = {r.n_units}" for r in summary.itertuples())
     text = (f"- *{about.label}*: {what} (response {panel.response_ms[0]:g}–{panel.response_ms[1]:g} ms after onset), "
-            f"one point per unit ({', '.join(shown_unit(u, about) for u in units['unit'])}); bars: median and "
+            f"one point per unit{' and condition' if 'condition' in units.columns else ''} "
+            f"({', '.join(shown_unit(u, about) for u in units['unit'].unique())}); bars: median and "
             f"interquartile range ({groups}).")
     if counts.get("open", 0):
-        text += f" Open points: {counts['open']} units whose fit is poorly constrained (included in the summary)."
+        text += f" Open points: {counts['open']} {what_counts} whose fit is poorly constrained (included in the summary)."
     if counts.get("left out", 0):
-        text += f" {counts['left out']} units with a poorly constrained fit left out."
+        text += f" {counts['left out']} {what_counts} with a poorly constrained fit left out."
     if counts.get("no value", 0):
-        text += f" {counts['no value']} units without a value (a failed fit, or no significant level)."
+        text += f" {counts['no value']} {what_counts} without a value (a failed fit, or no significant level)."
+    if "condition" in units.columns:
+        text += " Grey lines join each unit's values across conditions."
     for r in tables.get("test", pd.DataFrame()).itertuples():
         text += (f" {r.group_a} vs {r.group_b}: two-sided Mann–Whitney U = {r.U:g}, p = {r.p:.3g} (n = {r.n_a} and "
                  f"{r.n_b} units); rank-biserial r = {r.r:.2f} ({r.confidence:.0%} bootstrap interval over units "
                  f"{r.r_ci_low:.2f} to {r.r_ci_high:.2f}).")
     return text
+
+
+def split(conditions, panel: UnitDistributionPanel, levels: LevelSpec) -> dict[str, pd.DataFrame]:
+    """Each condition's values (each unit analysed on that condition's trials), grouped by condition."""
+    tables = stack([compute(c.recording, panel, levels) for c in conditions], [c.name for c in conditions])
+    tables["units"]["group"] = tables["units"]["condition"]
+    tables["summary"]["group"] = tables["summary"]["condition"]
+    return tables
+
+
+def compare(conditions, panel: UnitDistributionPanel, levels: LevelSpec, tables) -> pd.DataFrame:
+    """Each condition against the first on the units' values (paired two-sided Wilcoxon
+    signed-rank across the units with a value shown in both)."""
+    units = tables["units"]
+    used = units[units["shown"].isin(["filled", "open"] if panel.poorly_constrained == "apart" else ["filled"])]
+    return paired_tests(used, "value", [c.name for c in conditions], panel, panel.quantity, by_level=False)

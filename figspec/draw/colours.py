@@ -76,3 +76,27 @@ def marked_categories(artists: Iterable) -> dict[str, tuple]:
             colour = artist.get_color() if hasattr(artist, "get_color") else artist.get_edgecolor()
             out[gid[len(CATEGORY):]] = to_rgb(colour)
     return out
+
+
+LINE_DASHES = {"solid": "-", "dashed": "--", "dotted": ":", "dashdot": "-."}
+
+
+def series(points, panel, style: Style, unit_label=str) -> list[tuple]:
+    """The lines of a level-on-x panel: (name, rows, colour, marker, line, key label), one per unit,
+    or per unit and condition in a panel split by conditions. Units take the palette's colours
+    and markers; conditions take the spec's or the style's condition colours (one unit) and line
+    styles (always), so colour never carries two meanings at once."""
+    colours = unit_colours(points["unit"], style)
+    markers = unit_markers(points["unit"], style)
+    if "condition" not in points.columns:
+        return [(str(u), rows, colours[u], markers[u], "-", unit_label(u))
+                for u, rows in points.groupby("unit", sort=False)]
+    names = list(dict.fromkeys(points["condition"]))
+    looks = dict(zip(names, panel.conditions.looks(len(names), style.palette)))
+    one = len(colours) == 1
+    out = []
+    for (u, cond), rows in points.groupby(["unit", "condition"], sort=False):
+        colour, line = looks[cond]
+        out.append((f"{u}:{cond}", rows, colour if one else colours[u], markers[u], LINE_DASHES[line],
+                    str(cond) if one else f"{unit_label(u)}, {cond}"))
+    return out

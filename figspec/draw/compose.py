@@ -100,6 +100,8 @@ def _appearance(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> d
 def _draw_panel(sub, plan: PanelPlan, spec: FigureFile, ctx: DrawContext, appearance: dict,
                 labelled_rows: set, row_band: tuple) -> list:
     panel = plan.panel
+    if getattr(panel, "small_multiples", False):
+        return _small_multiples(sub, plan, ctx)
     arrange = getattr(panel, "arrange", None) if plan.stimulus is not None else None
     if arrange in ("rows", "columns"):
         n = len(plan.groups)
@@ -145,6 +147,44 @@ def _draw_panel(sub, plan: PanelPlan, spec: FigureFile, ctx: DrawContext, appear
         from figspec.draw.scalebars import draw_scale_bars
 
         draw_scale_bars(axes, plan, ctx)
+    return axes
+
+
+def _small_multiples(sub, plan: PanelPlan, ctx: DrawContext) -> list:
+    """One small axes per unit in a grid, each drawn by the kind from that unit's rows, every axes
+    on the panel's own (all-unit) limits so the units compare at a glance; the key only in the
+    first axes, tick labels only on the outer edge, the labels once for the grid."""
+    panel, tables = plan.panel, plan.tables
+    units = list(dict.fromkeys(next(t for t in tables.values() if "unit" in t.columns and len(t))["unit"]))
+    columns = panel.multiples_columns or int(np.ceil(np.sqrt(len(units))))
+    rows = int(np.ceil(len(units) / columns))
+    grid = sub.subplots(rows, columns, squeeze=False)
+    axes = []
+    for k, ax in enumerate(grid.flat):
+        if k >= len(units):
+            ax.remove()
+            continue
+        unit = units[k]
+        mine = {name: (t[t["unit"] == unit].reset_index(drop=True) if "unit" in t.columns else t)
+                for name, t in tables.items()}
+        plan.draw(ax, mine, panel, ctx)
+        if k and ax.get_legend() is not None:
+            ax.get_legend().remove()
+        ax.set_xlim(*plan.limits["x"])
+        lo, hi = plan.limits["y"]
+        pad = 0.05 * (hi - lo) if hi > lo else 1.0
+        ax.set_ylim(lo if lo == 0 else lo - pad, hi + pad)
+        ax.set_title(ctx.unit_label(unit), fontsize=ctx.style.font.tick_pt, pad=2)
+        if k // columns != rows - 1 and k + columns < len(units):
+            ax.tick_params(labelbottom=False)
+        if k % columns:
+            ax.tick_params(labelleft=False)
+        axes.append(ax)
+    sub.suptitle(plan.labels.title, fontsize=ctx.style.font.title_pt)
+    if plan.labels.x:
+        sub.supxlabel(plan.labels.x, fontsize=ctx.style.font.body_pt)
+    if plan.labels.y:
+        sub.supylabel(plan.labels.y, fontsize=ctx.style.font.body_pt)
     return axes
 
 

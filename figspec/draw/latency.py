@@ -7,9 +7,9 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from figspec.draw.colours import category_gid, unit_colours, unit_markers
+from figspec.draw.colours import category_gid, series
 from figspec.draw.context import DrawContext, Labels
-from figspec.draw.level_axis import (draw_fit, level_limits, own_limits, set_level_scale, shifted, unit_shifts_pt,
+from figspec.draw.level_axis import (draw_fit, level_limits, mark_differences, own_limits, set_level_scale, shifted, unit_shifts_pt,
                                      versus_title)
 from figspec.optional import deferred
 from figspec.spec.models import LevelSpec
@@ -27,25 +27,29 @@ def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LatencyPanel, ctx: 
     """Latency per level: filled markers where the level drives a significant response, open
     where it does not (left out of the fit by default); units side by side, one marker width apart."""
     points, curve = tables["points"], tables["fit"]
-    colours = unit_colours(points["unit"], ctx.style)
-    markers = unit_markers(points["unit"], ctx.style)
+    lines = series(points, panel, ctx.style, ctx.unit_label)
+    colours = {name: c for name, _, c, _, _, _ in lines}
     set_level_scale(ax, panel, points["level"].to_numpy())        # before any offset transform is made
     shifts = dict(zip(colours, unit_shifts_pt(ax, panel, points["level"], len(colours), ctx.style.summary.marker_pt)))
-    for unit, rows in points.groupby("unit", sort=False):
-        c = colours[unit]
-        at = shifted(ax, ax.transData, shifts[unit])
+    for name, rows, c, marker, dash, label in lines:
+        at = shifted(ax, ax.transData, shifts[name])
         x, y = rows["level"].to_numpy(dtype=float), rows["latency_ms"].to_numpy(dtype=float)
         if rows["ci_low_ms"].notna().any():
             err = np.vstack([y - rows["ci_low_ms"].to_numpy(), rows["ci_high_ms"].to_numpy() - y])
-            ax.errorbar(x, y, yerr=np.nan_to_num(err), color=c, linestyle="none", gid=f"errors:{unit}", transform=at)
+            ax.errorbar(x, y, yerr=np.nan_to_num(err), color=c, linestyle="none", gid=f"errors:{name}", transform=at)
         if panel.fit == "none":
-            ax.plot(x, y, "-", color=c, gid=f"line:{unit}", transform=at)
+            ax.plot(x, y, dash, color=c, gid=f"line:{name}", transform=at)
         responsive = rows["responsive"].to_numpy(dtype=bool)
-        ax.plot(x[responsive], y[responsive], markers[unit], color=c, label=ctx.unit_label(unit), gid=category_gid(unit),
+        ax.plot(x[responsive], y[responsive], marker, color=c, label=label, gid=category_gid(name),
                 transform=at, clip_on=False, in_layout=False)
-        ax.plot(x[~responsive], y[~responsive], markers[unit], color="white", markeredgecolor=c, gid=f"points_ns:{unit}",
+        ax.plot(x[~responsive], y[~responsive], marker, color="white", markeredgecolor=c, gid=f"points_ns:{name}",
                 transform=at, clip_on=False, in_layout=False)
-        draw_fit(ax, curve[curve["unit"] == unit], "latency_ms", c, unit)
+        fitted = curve[curve["unit"] == rows["unit"].iloc[0]]
+        if "condition" in curve.columns:
+            fitted = fitted[fitted["condition"] == rows["condition"].iloc[0]]
+        draw_fit(ax, fitted, "latency_ms", c, name, dash)
+    if "tests" in tables:
+        mark_differences(ax, tables["tests"], points, "ci_high_ms", panel.alpha)
     own_limits(ax, limits(panel, tables))            # offset artists do not enter matplotlib's autoscaling
     handles, names = ax.get_legend_handles_labels()
     if len(colours) == 1:

@@ -101,11 +101,38 @@ def versus_title(what: str, levels: LevelSpec) -> str:
     return f"{what} vs {shown}"
 
 
-def draw_fit(ax: "Axes", fitted, y: str, colour, unit: str) -> None:
-    """A fitted curve: solid when the fit is ok, dashed when it is poorly constrained (failed
-    fits have no rows)."""
+def draw_fit(ax: "Axes", fitted, y: str, colour, unit: str, line: str = "-") -> None:
+    """A fitted curve in ``line`` (solid by default) when the fit is ok; when it is poorly
+    constrained dashed, or, when the line is already dashed for a condition, at half width
+    (failed fits have no rows)."""
+    import matplotlib as mpl
+
     for status, rows in fitted.groupby("status", sort=False):
-        ax.plot(rows["level"], rows[y], "-" if status == "ok" else "--", color=colour, gid=f"fit:{unit}:{status}")
+        poor = status != "ok"
+        style = ("--" if line == "-" else line) if poor else line
+        width = 0.5 * mpl.rcParams["lines.linewidth"] if poor and line != "-" else None
+        ax.plot(rows["level"], rows[y], style, color=colour, gid=f"fit:{unit}:{status}", linewidth=width)
+
+
+STAR_PT = 3.0      # gap between a point's upper error bar and the mark of a difference between conditions
+
+
+def mark_differences(ax: "Axes", tests, points, top: str, alpha: float) -> None:
+    """An asterisk above each level where a test between conditions is significant after
+    correction (one unit: per level; several units: the tests are in the table and legend only,
+    since stars for every unit would crowd the axes)."""
+    if points["unit"].nunique() != 1 or not len(tests):
+        return
+    from matplotlib.transforms import offset_copy
+
+    sig = tests[tests["p_corrected"] < alpha]
+    above = offset_copy(ax.transData, fig=ax.figure, x=0.0, y=STAR_PT, units="points")
+    for level in sig["level"].unique():
+        high = points.loc[points["level"] == level, top].to_numpy(dtype=float)
+        high = high[np.isfinite(high)]
+        if high.size:
+            ax.text(float(level), float(high.max()), "*", ha="center", va="bottom", transform=above,
+                    gid=f"difference:{level:g}", clip_on=False)
 
 
 def unit_shifts_pt(ax: "Axes", panel, levels, n_units: int, marker_pt: float) -> list[float]:

@@ -7,9 +7,9 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from figspec.draw.colours import category_gid, unit_colours, unit_markers
+from figspec.draw.colours import category_gid, series
 from figspec.draw.context import DrawContext, Labels
-from figspec.draw.level_axis import (draw_fit, level_limits, own_limits, set_level_scale, shifted, unit_shifts_pt,
+from figspec.draw.level_axis import (draw_fit, level_limits, mark_differences, own_limits, set_level_scale, shifted, unit_shifts_pt,
                                      versus_title)
 from figspec.optional import deferred
 from figspec.spec.models import LevelSpec
@@ -33,26 +33,37 @@ def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LevelResponsePanel,
     corrected test is significant (open otherwise), the fitted curve, and a mark on the
     level axis at each unit's threshold by test."""
     points, curve, params = tables["points"], tables["fit"], tables["params"]
-    colours = unit_colours(points["unit"], ctx.style)
-    markers = unit_markers(points["unit"], ctx.style)
+    lines = series(points, panel, ctx.style, ctx.unit_label)
+    colours = {name: c for name, _, c, _, _, _ in lines}
+    unit_colour = {}
+    for _, rows, c, _, _, _ in lines:            # a unit's threshold mark: its first condition's colour
+        unit_colour.setdefault(str(rows["unit"].iloc[0]), c)
     tested = panel.test != "none"
     set_level_scale(ax, panel, points["level"].to_numpy())        # before any offset transform is made
     shifts = dict(zip(colours, unit_shifts_pt(ax, panel, points["level"], len(colours), ctx.style.summary.marker_pt)))
-    for unit, rows in points.groupby("unit", sort=False):
-        c = colours[unit]
-        at = shifted(ax, ax.transData, shifts[unit])
+    for name, rows, c, marker, dash, label in lines:
+        at = shifted(ax, ax.transData, shifts[name])
         x, y = rows["level"].to_numpy(), rows["response"].to_numpy()
         err = np.vstack([y - rows["error_low"].to_numpy(), rows["error_high"].to_numpy() - y])
-        line = "none" if panel.fit != "none" else "-"
-        ax.errorbar(x, y, yerr=np.nan_to_num(err), color=c, linestyle=line, marker="none", gid=f"errors:{unit}",
+        line = "none" if panel.fit != "none" else dash
+        ax.errorbar(x, y, yerr=np.nan_to_num(err), color=c, linestyle=line, marker="none", gid=f"errors:{name}",
                     transform=at)
         sig = rows["significant"].to_numpy(dtype=bool) if tested else np.ones(len(rows), bool)
-        ax.plot(x[sig], y[sig], markers[unit], color=c, markeredgecolor=c, label=ctx.unit_label(unit), gid=category_gid(unit),
+        ax.plot(x[sig], y[sig], marker, color=c, markeredgecolor=c, label=label, gid=category_gid(name),
                 transform=at, clip_on=False, in_layout=False)
-        ax.plot(x[~sig], y[~sig], markers[unit], color="white", markeredgecolor=c, gid=f"points_ns:{unit}", transform=at,
+        ax.plot(x[~sig], y[~sig], marker, color="white", markeredgecolor=c, gid=f"points_ns:{name}", transform=at,
                 clip_on=False, in_layout=False)
-        draw_fit(ax, curve[curve["unit"] == unit], "response", c, unit)
-    thresholds = params[params["quantity"] == "threshold_by_test"].set_index("unit")["value"].dropna()
+        fitted = curve[curve["unit"] == rows["unit"].iloc[0]]
+        if "condition" in curve.columns:
+            fitted = fitted[fitted["condition"] == rows["condition"].iloc[0]]
+        draw_fit(ax, fitted, "response", c, name, dash)
+    if "tests" in tables:
+        mark_differences(ax, tables["tests"], points, "error_high", panel.alpha)
+    thresholds = params[params["quantity"] == "threshold_by_test"]
+    if "condition" in params.columns:            # one mark per unit: the first condition's threshold
+        thresholds = thresholds[thresholds["condition"] == points["condition"].iloc[0]]
+    thresholds = thresholds.set_index("unit")["value"].dropna()
+    colours = unit_colour
     for level, units in thresholds.groupby(thresholds, sort=False).groups.items():
         # units with one threshold level sit side by side, one marker width apart: none hides another
         for unit, dx in zip(units, (np.arange(len(units)) - (len(units) - 1) / 2) * ctx.style.summary.marker_pt):

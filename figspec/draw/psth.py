@@ -71,6 +71,9 @@ def draw(target, table: pd.DataFrame, panel: PsthPanel, ctx: DrawContext) -> Non
         _overlay(target, table, panel, ctx, shared)
         return
     style = ctx.style
+    if "condition" in table.columns:
+        _conditions(target, table, panel, ctx, shared, lower, upper)
+        return
     for value, rows in table.groupby(panel.repeat, sort=False):
         ax = target[group_key(panel.repeat, value)]
         edges = np.r_[rows["bin_start_ms"].to_numpy(), rows["bin_stop_ms"].to_numpy()[-1]]
@@ -87,6 +90,32 @@ def draw(target, table: pd.DataFrame, panel: PsthPanel, ctx: DrawContext) -> Non
         ax.set_yticks([bottom, 0.0, top] if bottom < 0 else [bottom, top])
         ax.yaxis.set_major_formatter("{x:g}")
         ax.set_xlim(*panel.window_ms)
+
+
+def _conditions(target: dict, table: pd.DataFrame, panel: PsthPanel, ctx: DrawContext, shared, lower, upper) -> None:
+    """Each axes (level) shows every condition as a step line in the condition's colour and line
+    style (a SEM band for a population), on one locked y scale; the key sits in the top axes."""
+    from figspec.draw.colours import LINE_DASHES
+
+    names = list(dict.fromkeys(table["condition"]))
+    looks = dict(zip(names, panel.conditions.looks(len(names), ctx.style.palette)))
+    for value, rows in table.groupby(panel.repeat, sort=False):
+        ax = target[group_key(panel.repeat, value)]
+        for name, part in rows.groupby("condition", sort=False):
+            colour, line = looks[name]
+            edges = np.r_[part["bin_start_ms"].to_numpy(), part["bin_stop_ms"].to_numpy()[-1]]
+            if "rate_sem" in part:
+                ax.stairs(upper[part.index].to_numpy(), edges, baseline=lower[part.index].to_numpy(), fill=True,
+                          color=colour, alpha=0.2, linewidth=0, gid=f"rate_sem:{name}")
+            ax.stairs(part["rate"].to_numpy(), edges, color=colour, linestyle=LINE_DASHES[line],
+                      linewidth=ctx.style.summary.line_pt, label=str(name), gid=category_gid(name))
+        bottom, top = shared if panel.lock_y else _limits(lower[rows.index], upper[rows.index], panel)
+        ax.set_ylim(bottom, top)
+        ax.set_yticks([bottom, 0.0, top] if bottom < 0 else [bottom, top])
+        ax.yaxis.set_major_formatter("{x:g}")
+        ax.set_xlim(*panel.window_ms)
+    first = next(iter(target.values()))
+    first.legend(loc="upper right", handlelength=1.6, borderaxespad=0.1, fontsize=ctx.style.font.tick_pt)
 
 
 def _overlay(ax: "Axes", table: pd.DataFrame, panel: PsthPanel, ctx: DrawContext, limits) -> None:

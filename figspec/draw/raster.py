@@ -24,6 +24,10 @@ def draw(axes: dict, table: pd.DataFrame, panel: RasterPanel, ctx: DrawContext) 
         return
     style = ctx.style
     half = style.raster.tick_height / 2
+    looks = {}
+    if "condition" in table.columns:
+        names = list(dict.fromkeys(table["condition"]))
+        looks = {n: colour for n, (colour, _) in zip(names, panel.conditions.looks(len(names), style.palette))}
     groups = table[panel.repeat].to_numpy()
     bounds = np.flatnonzero(np.r_[True, groups[1:] != groups[:-1], True])
     for lo, hi in zip(bounds[:-1], bounds[1:]):
@@ -32,14 +36,36 @@ def draw(axes: dict, table: pd.DataFrame, panel: RasterPanel, ctx: DrawContext) 
         times = table["time_ms"].to_numpy()[lo:hi]
         n_trials = int(table["n_trials"].iloc[lo])
         spikes = ~np.isnan(times)
-        # add_artist, not add_patch: the limits are set below, and add_patch would walk every tick for them
-        ax.add_artist(tick_patch(tick_path(times[spikes], rows[spikes].astype(float), half), fill=False,
-                                 edgecolor=style.raster.colour, linewidth=tick_width(ax, n_trials, style),
-                                 capstyle="butt", gid="raster"))
+        width = tick_width(ax, n_trials, style)
+        if looks:
+            _condition_blocks(ax, table.iloc[lo:hi], looks, half, width, first=True, style=style)
+        else:
+            # add_artist, not add_patch: the limits are set below, and add_patch would walk every tick for them
+            ax.add_artist(tick_patch(tick_path(times[spikes], rows[spikes].astype(float), half), fill=False,
+                                     edgecolor=style.raster.colour, linewidth=width, capstyle="butt", gid="raster"))
         ax.set_ylim(n_trials - 0.5, -0.5)
         ax.set_xlim(*panel.window_ms)
         ax.set_yticks([])
         ax.spines["left"].set_visible(False)
+
+
+def _condition_blocks(ax, rows: pd.DataFrame, looks: dict, half: float, width: float, first: bool, style) -> None:
+    """One block of lines per condition, ticks in the condition's colour, a thin rule between
+    blocks, and (in the top axes) each block's name at its right."""
+    from matplotlib.transforms import blended_transform_factory
+
+    edge = blended_transform_factory(ax.transAxes, ax.transData)
+    for name, block in rows.groupby("condition", sort=False):
+        times, lines = block["time_ms"].to_numpy(), block["row"].to_numpy().astype(float)
+        spikes = ~np.isnan(times)
+        ax.add_artist(tick_patch(tick_path(times[spikes], lines[spikes], half), fill=False, edgecolor=looks[name],
+                                 linewidth=width, capstyle="butt", gid=f"raster:{name}"))
+        start = float(lines.min()) - 0.5
+        if start > 0:
+            ax.axhline(start, color="0.6", linewidth=style.axes.line_pt / 2, gid=f"condition_rule:{name}")
+        if first:
+            ax.text(1.01, (start + float(lines.max()) + 0.5) / 2, str(name), transform=edge, ha="left", va="center",
+                    color=looks[name], fontsize=style.font.tick_pt, gid=f"condition_name:{name}")
 
 
 TICK_ASPECT = 2.5      # a tick at least this many times as long as it is wide reads as a tick, not a dot

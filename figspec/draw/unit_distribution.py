@@ -24,11 +24,13 @@ NAMES = {"L50": "L50", "n": "Exponent n", "Rmax": "Rmax", "R0": "R0", "threshold
 def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: UnitDistributionPanel, ctx: DrawContext) -> None:
     units, summary = tables["units"], tables["summary"]
     groups = summary["group"].tolist()
+    placed = []
     for i, group in enumerate(groups):
         rows = units[(units["group"] == group) & units["shown"].isin(["filled", "open"])].sort_values("value")
         spread = np.linspace(-0.15, 0.15, len(rows)) if len(rows) > 1 else np.zeros(len(rows))
         filled = (rows["shown"] == "filled").to_numpy()
         x, y = i + spread, rows["value"].to_numpy(dtype=float)
+        placed.append(pd.DataFrame({"unit": rows["unit"].to_numpy(), "x": x, "y": y, "group": i}))
         ax.plot(x[filled], y[filled], "o", color="black", markersize=ctx.style.summary.marker_pt, gid=f"units:{group}",
                 clip_on=False)
         ax.plot(x[~filled], y[~filled], "o", color="white", markeredgecolor="black",
@@ -38,6 +40,14 @@ def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: UnitDistributionPan
                 gid=f"median:{group}")
         ax.plot([i + 0.32] * 2, [row["q25"], row["q75"]], "-", color="0.3", linewidth=ctx.style.axes.line_pt,
                 gid=f"iqr:{group}")
+    if "condition" in units.columns and placed:       # paired values: each unit's points joined across conditions
+        wide = pd.concat(placed).pivot_table(index="unit", columns="group", values=["x", "y"], aggfunc="first")
+        for a, b in zip(range(len(groups) - 1), range(1, len(groups))):
+            if ("x", a) in wide and ("x", b) in wide:
+                both = wide[[("x", a), ("x", b), ("y", a), ("y", b)]].dropna()
+                for r in both.itertuples(index=False):
+                    ax.plot([r[0], r[1]], [r[2], r[3]], "-", color="0.8", linewidth=ctx.style.axes.line_pt / 2,
+                            zorder=0, gid="pair")
     ax.set_xticks(range(len(groups)), [f"{g}\nn = {n}" for g, n in zip(groups, summary["n_units"])])
     ax.set_xlim(-0.6, len(groups) - 0.4)
 

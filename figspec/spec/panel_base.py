@@ -8,7 +8,7 @@ from typing import Annotated, Literal
 from pydantic import Field, model_validator
 
 from figspec.spec.fields import MAX_TICKS, Frozen, Level, Magnitude, Name, PositiveMs, Seed, Text, WindowMs
-from figspec.spec.selection import TrialSelection
+from figspec.spec.selection import ConditionSplit, TrialSelection
 
 Probability = Annotated[float, Field(gt=0, lt=1)]
 GridCell = tuple[Annotated[int, Field(ge=1)], Annotated[int, Field(ge=1)]]
@@ -33,6 +33,7 @@ class PanelBase(Frozen):
     y_ticks: Ticks | None = None
     y_step: Step | None = None
     keep: TrialSelection = TrialSelection()
+    conditions: ConditionSplit | None = None
 
     @model_validator(mode="after")
     def _ticks(self) -> "PanelBase":
@@ -60,6 +61,10 @@ class PanelBase(Frozen):
         """The panel's time windows (ms from the alignment point) by key, for data checks."""
         return {}
 
+    def colours_units(self) -> bool:
+        """Whether the panel tells units apart by palette colour (and marker) in one axes."""
+        return False
+
 
 class TimePanel(PanelBase):
     """Panels with time on x, repeated per level (or per unit) down rows or across columns, or
@@ -82,6 +87,11 @@ class TimePanel(PanelBase):
         if self.x_step is not None and span / self.x_step > MAX_TICKS:
             raise ValueError(f"x_step = {self.x_step:g} ms gives {span / self.x_step:.0f} ticks over window_ms; "
                              f"at most {MAX_TICKS} ticks per axis")
+        if self.conditions is not None and self.arrange == "overlay":
+            raise ValueError("an overlay already tells its lines apart by colour: split conditions in rows or "
+                             "columns (each axes then shows every condition)")
+        if self.conditions is not None and self.repeat == "unit":
+            raise ValueError("conditions are drawn within each level's axes: use repeat = 'level'")
         if self.time_bar_ms is not None and self.time_bar_ms > span:
             raise ValueError(f"time_bar_ms ({self.time_bar_ms:g} ms) is longer than window_ms ({span:g} ms)")
         return self
@@ -89,13 +99,18 @@ class TimePanel(PanelBase):
     def windows(self) -> dict[str, tuple[float, float]]:
         return {"window_ms": self.window_ms}
 
+    def colours_units(self) -> bool:
+        return self.arrange == "overlay" and self.repeat == "unit"
+
     def stimulus_units(self) -> list[str]:
         """Whose trials give the stimulus windows: each repeated unit, else the first unit."""
         return self.unit_names() if self.units and self.repeat == "unit" else self.unit_names()[:1]
 
 
 class SummaryPanel(PanelBase):
-    """Panels with level on x and one line per unit."""
+    """Panels with level on x and one line per unit; with ``small_multiples`` one small axes per
+    unit in a grid (``multiples_columns`` wide, about square by default), every axes on the same
+    scales."""
 
     response_ms: WindowMs = (0.0, 50.0)
     baseline_ms: WindowMs = (-50.0, 0.0)
@@ -106,9 +121,13 @@ class SummaryPanel(PanelBase):
     correction: Literal["holm", "none"] = "holm"
     seed: Seed = 0
     y_label: Text | None = None
+    small_multiples: bool = False
+    multiples_columns: Annotated[int, Field(ge=1, le=20)] | None = None
 
     @model_validator(mode="after")
     def _windows(self) -> "SummaryPanel":
+        if self.multiples_columns is not None and not self.small_multiples:
+            raise ValueError("multiples_columns sets the grid of small_multiples: set small_multiples = true")
         if self.response_ms[0] < 0:
             raise ValueError(f"response_ms must start at or after stimulus onset (0 ms), got {list(self.response_ms)}")
         if self.baseline_ms[1] > 0:
@@ -117,3 +136,6 @@ class SummaryPanel(PanelBase):
 
     def windows(self) -> dict[str, tuple[float, float]]:
         return {"response_ms": self.response_ms, "baseline_ms": self.baseline_ms}
+
+    def colours_units(self) -> bool:
+        return not self.small_multiples

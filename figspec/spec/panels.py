@@ -36,6 +36,9 @@ class RasterPanel(TimePanel):
             raise ValueError("a raster shows one unit per axes: with units = [...] set repeat = 'unit'")
         if self.trials_shown is not None and self.draw_as == "density":
             raise ValueError("trials_shown draws a subset of trials as ticks; a density image shows them all")
+        if self.trials_shown is not None and self.conditions is not None:
+            raise ValueError("trials_shown draws a subset of trials; with conditions every trial of each condition "
+                             "is drawn (a subset would hide how many trials each block has)")
         if self.density_bins is not None and self.draw_as == "ticks":
             raise ValueError("density_bins is for draw_as = 'density' (or 'auto')")
         return self
@@ -201,6 +204,9 @@ class PopulationHeatmapPanel(PanelBase):
                              "(and set sort_column only with sort_by = 'table')")
         if self.unit is not None:
             raise ValueError("a population heatmap shows several units: use units = [...] or units = 'all'")
+        if self.conditions is not None:
+            raise ValueError("a heatmap shows one condition (its colour is already the rate): draw one heatmap per "
+                             "condition, each with keep.where")
         return self
 
     def windows(self) -> dict[str, tuple[float, float]]:
@@ -226,6 +232,7 @@ class PopulationResponsePanel(SummaryPanel):
     summary: Literal["mean_sem", "median_iqr"] = "mean_sem"
     fit: Literal["none", "naka_rushton"] = "naka_rushton"
     failed_fits: Literal["leave_out", "use_max"] = "leave_out"
+    alpha: Probability = 0.05           # significance of the paired tests between conditions, after correction
 
     @model_validator(mode="after")
     def _population(self) -> "PopulationResponsePanel":
@@ -233,7 +240,13 @@ class PopulationResponsePanel(SummaryPanel):
             raise ValueError("normalise = 'fit_max' divides by each unit's fitted maximum: set fit = 'naka_rushton'")
         if self.unit is not None:
             raise ValueError("a population response shows several units: use units = [...] or units = 'all'")
+        if self.small_multiples:
+            raise ValueError("a population response is one curve across units: small_multiples is for "
+                             "level_response and latency")
         return self
+
+    def colours_units(self) -> bool:
+        return False                 # units are thin grey lines or points of one colour
 
     def fitted_model(self) -> str | None:
         return None if self.fit == "none" else self.fit
@@ -248,13 +261,16 @@ class UnitDistributionPanel(SummaryPanel):
     level whose corrected test against baseline is significant). Units whose fit is poorly
     constrained are drawn open and counted (``poorly_constrained = "apart"``), left out and
     counted (``"leave_out"``), or drawn as the others (``"include"``); units whose fit failed have no
-    value and are counted. With two groups, ``test = "mann_whitney"`` compares them (two-sided
-    Mann-Whitney U) with the rank-biserial correlation as effect size and its bootstrap interval."""
+    value and are counted. With two sources, ``test = "mann_whitney"`` compares them (two-sided
+    Mann-Whitney U) with the rank-biserial correlation as effect size and its bootstrap interval.
+    With ``group_by = "condition"`` the groups are the panel's ``conditions`` (each unit's value
+    in each condition), compared by the paired two-sided Wilcoxon signed-rank test across the
+    units with a value in both, with the matched-pairs rank-biserial correlation."""
 
     kind: Literal["unit_distribution"]
     units: Annotated[list[str], Field(min_length=2)] | Literal["all"] = "all"
     quantity: Literal["L50", "n", "Rmax", "R0", "threshold"] = "L50"
-    group_by: Literal["none", "source"] = "none"
+    group_by: Literal["none", "source", "condition"] = "none"
     poorly_constrained: Literal["apart", "leave_out", "include"] = "apart"
     test: Literal["mann_whitney", "none"] = "none"
     subtract_baseline: bool = False
@@ -266,9 +282,21 @@ class UnitDistributionPanel(SummaryPanel):
     def _groups(self) -> "UnitDistributionPanel":
         if self.test != "none" and self.group_by == "none":
             raise ValueError("a test compares groups: set group_by = 'source' (two pooled sources)")
+        if (self.group_by == "condition") != (self.conditions is not None):
+            raise ValueError("group_by = 'condition' groups the units' values by the panel's conditions: set both "
+                             "(conditions = { column = ... } and group_by = 'condition')")
+        if self.group_by == "condition" and self.test != "none":
+            raise ValueError("conditions are compared within units (paired Wilcoxon signed-rank), set by "
+                             "conditions.test; test = 'mann_whitney' compares independent groups (sources)")
+        if self.small_multiples:
+            raise ValueError("a distribution is one axes across units: small_multiples is for level_response "
+                             "and latency")
         if self.unit is not None:
             raise ValueError("a distribution across units shows several units: use units = [...] or units = 'all'")
         return self
+
+    def colours_units(self) -> bool:
+        return False                 # units are thin grey lines or points of one colour
 
     def fitted_model(self) -> str | None:
         return None if self.quantity == "threshold" else "naka_rushton"

@@ -49,10 +49,17 @@ class StimulusStyle(Frozen):
     range_hatch_opacity: Fraction
 
 
+CONDITION_COLOURS = ("#000000", "#0072b2", "#d55e00", "#009e73", "#cc79a7", "#e69f00")   # Okabe & Ito's set
+CONDITION_LINES = ("solid", "dashed", "dotted", "dashdot", "solid", "dashed")
+
+
 class PaletteStyle(Frozen):
     units: list[Colour] = Field(min_length=1)
     levels: ColourMap
     stimulus_levels: ColourMap
+    conditions: Annotated[list[Colour], Field(min_length=2)] = list(CONDITION_COLOURS)
+    condition_lines: Annotated[list[Literal["solid", "dashed", "dotted", "dashdot"]], Field(min_length=2)] = \
+        list(CONDITION_LINES)
 
 
 class LetterStyle(Frozen):

@@ -6,6 +6,7 @@ from __future__ import annotations
 from dataclasses import dataclass, replace
 
 
+from figspec.compute.conditions import stack
 from figspec.compute.stimulus import stimulus_table
 from figspec.errors import UserError
 from figspec.optional import deferred
@@ -47,7 +48,8 @@ def compute(resolved: Resolved) -> Tables:
         rec = resolved.recording(panel)
         kind = kind_of(panel)
         try:
-            panels[panel.name] = kind.compute(rec, panel, model.levels)
+            panels[panel.name] = compute_panel(kind, rec, (resolved.panel_conditions or {}).get(panel.name), panel,
+                                               model.levels)
         except UserError as err:
             raise type(err)([resolved.spec.locate(replace(p, loc=("panels", i) + p.loc))
                              for p in err.problems]) from None
@@ -55,3 +57,20 @@ def compute(resolved: Resolved) -> Tables:
             stimulus[panel.name] = pd.concat([stimulus_table(rec, u, model.stimulus, panel.levels, sham)
                                               for u in panel.stimulus_units()], ignore_index=True)
     return Tables(panels=panels, stimulus=stimulus)
+
+
+def compute_panel(kind, rec, conditions, panel, levels):
+    """A panel's tables: its kind's, or with conditions each condition's stacked with a
+    ``condition`` column (the kind's own ``split`` where it needs more, such as one divisor for
+    every condition), plus a ``tests`` table when the kind tests between conditions."""
+    if not conditions:
+        return kind.compute(rec, panel, levels)
+    if kind.split is not None:
+        tables = kind.split(conditions, panel, levels)
+    else:
+        tables = stack([kind.compute(c.recording, panel, levels) for c in conditions], [c.name for c in conditions])
+    if panel.conditions.test:
+        tests = kind.compare(conditions, panel, levels, tables)
+        if tests is not None:
+            tables = {**tables, "tests": tests}
+    return tables

@@ -10,6 +10,7 @@ from pathlib import Path
 
 import numpy as np
 
+from figspec.data.conditions import split_conditions
 from figspec.data.keep import select_trials
 from figspec.data.pooling import pool, pooled_name
 from figspec.data.readers import load_source
@@ -39,6 +40,7 @@ class Resolved:
     style_sources: tuple = ()
     panel_recordings: dict[str, Recording] | None = None
     scale: float = 1.0               # the page's scale when drawn in another style than the spec's
+    panel_conditions: dict | None = None     # panel name -> its conditions (data.conditions.Condition), if split
 
     def recording(self, panel: PanelBase) -> Recording:
         if self.panel_recordings is not None and panel.name in self.panel_recordings:
@@ -78,6 +80,13 @@ def resolve(spec: LoadedSpec, style: str | None = None, frames: dict | None = No
     problems = [p for _, _, found in done for p in found]
     if problems:
         raise spec.error(problems, DataError)
+    conditions = {}
+    for i, (p, rec, _) in enumerate(done):
+        if p.conditions is not None:
+            conditions[p.name], found = split_conditions(rec, p.conditions, p.levels, p.name)
+            problems += [replace(f, loc=("panels", i) + f.loc) for f in found]
+    if problems:
+        raise spec.error(problems, DataError)
     problems = figure_limits(spec.model, [(p, rec) for p, rec, _ in done])
     if problems:
         raise spec.error(problems)
@@ -89,7 +98,8 @@ def resolve(spec: LoadedSpec, style: str | None = None, frames: dict | None = No
             for i, (p, rec, found) in enumerate(done)]
     return Resolved(spec=spec, recordings=recordings, panels=tuple(p for p, _, _ in done),
                     style=resolved_style.style, style_sources=resolved_style.sources,
-                    panel_recordings={p.name: rec for p, rec, _ in done}, scale=scale)
+                    panel_recordings={p.name: rec for p, rec, _ in done}, scale=scale,
+                    panel_conditions=conditions)
 
 
 def reflow_scale(spec: LoadedSpec, own: Style, style: Style) -> float:
@@ -136,7 +146,7 @@ def load_recordings(spec: LoadedSpec, frames: dict) -> dict[str, Recording]:
         users = [p for p in model.panels if name in _sources_of(model, p)]
         units = None if any(p.unit is None and p.units in (None, "all") for p in users) else \
             {u.split("/", 1)[-1] for p in users for u in p.unit_names()}
-        where = {c for p in users for c in p.keep.where}
+        where = {c for p in users for c in p.keep.where} | {p.conditions.column for p in users if p.conditions}
         try:
             recordings[name] = load_source(src, spec.folder, ("sources", name), units, where, frames.get(name))
         except UserError as err:
@@ -281,6 +291,8 @@ def extent_problems(panel: PanelBase, rec: Recording) -> list[Problem]:
 
 def axes_count(panel: PanelBase, rec: Recording) -> int:
     """How many axes a panel draws: one per level or unit it repeats over, else one."""
+    if getattr(panel, "small_multiples", False):
+        return len(panel.unit_names())
     if getattr(panel, "arrange", "overlay") == "overlay":
         return 1
     if getattr(panel, "repeat", "level") == "unit":
@@ -293,7 +305,7 @@ def warn_repeated_colours(panels: list[PanelBase], style: Style) -> None:
     repeats colours (told apart by marker shape, see draw.colours.unit_markers): said before drawing."""
     size = len(style.palette.units)
     for i, p in enumerate(panels):
-        by_colour = not hasattr(p, "arrange") or (p.arrange == "overlay" and p.repeat == "unit")
+        by_colour = p.colours_units()
         if by_colour and len(p.unit_names()) > size:
             warnings.warn(f"panels[{i}] ({p.name}) shows {len(p.unit_names())} units but the style's palette has {size} "
                           f"colours: units {size + 1}-{len(p.unit_names())} repeat colours"

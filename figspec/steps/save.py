@@ -14,8 +14,9 @@ from figspec.output.files import figure_files, table_bytes
 from figspec.output.output_set import write_set
 from figspec.output.provenance import (build_inputs, code_sha256, input_files, parameters, provenance_line,
                                        versions)
+from figspec.compute.conditions import split_legend, split_statistics
 from figspec.output.report import legend_text, manifest, statistics_table
-from figspec.registry import kind_of
+from figspec.registry import kind_of, no_comparison
 from figspec.spec.layout import panel_letters
 from figspec.steps.compute import Tables
 from figspec.steps.resolve import Resolved
@@ -52,7 +53,10 @@ def legend(resolved: Resolved, tables: Tables) -> str:
     for declared, panel in zip(model.panels, resolved.panels):
         about = About(letters.get(panel.name, panel.name), declared, model.levels.unit, model.levels.scale,
                       model.units.label)
-        sentences.append(kind_of(panel).legend(panel, tables.panels[panel.name], about))
+        kind, table = kind_of(panel), tables.panels[panel.name]
+        sentences.append(split_legend(kind.legend, panel, table, about, resolved.style.palette,
+                                      kind.compare is not no_comparison)
+                         if panel.conditions is not None else kind.legend(panel, table, about))
     sentences += [choice.sentence(name) for name, choice in unit_choices(resolved).items()]
     return legend_text(model.figure.title, sentences)
 
@@ -65,11 +69,15 @@ def unit_choices(resolved: Resolved) -> dict:
 def removed(resolved: Resolved) -> dict[str, list]:
     """Per panel, what was left out on the way to its data: (rule, how many) for every trial
     selection rule of its source(s) and its own, and spikes outside every trial."""
-    return {p.name: [list(item) for item in resolved.recording(p).removed] for p in resolved.panels}
+    split = resolved.panel_conditions or {}
+    return {p.name: [list(item) for item in (split[p.name][0].recording.removed if p.name in split
+                                              else resolved.recording(p).removed)] for p in resolved.panels}
 
 
 def statistics(resolved: Resolved, tables: Tables):
-    rows = [row for p in resolved.panels for row in kind_of(p).statistics(p, tables.panels[p.name])]
+    rows = [row for p in resolved.panels for row in
+            (split_statistics(kind_of(p).statistics, p, tables.panels[p.name]) if p.conditions is not None
+             else kind_of(p).statistics(p, tables.panels[p.name]))]
     rows += [["removed", name, None, None, what, n, None, None, "left out before computing"]
              for name, items in removed(resolved).items() for what, n in items]
     return statistics_table(rows)
