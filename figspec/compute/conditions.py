@@ -119,7 +119,8 @@ def paired_tests(table: pd.DataFrame, value: str, names: list[str], panel, what:
             if other not in wide or names[0] not in wide:
                 continue
             pairs = wide[[other, names[0]]].dropna()
-            d = (pairs[other] - pairs[names[0]]).to_numpy(dtype=float)
+            # equal means summed in another order differ by ~1e-17: such float noise is a tie, not a difference
+            d = np.round((pairs[other] - pairs[names[0]]).to_numpy(dtype=float), 12)
             if d.size < 2 or np.all(d == 0):
                 stat, p = np.nan, np.nan
             else:

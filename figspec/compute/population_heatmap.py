@@ -135,6 +135,11 @@ def check(rec: Recording, panel: PopulationHeatmapPanel, levels: LevelSpec) -> l
                         ("units",), ", ".join(dict.fromkeys(units)))]
     if len(set(units)) < len(units):
         return [Problem("a unit is named twice", ("units",), ", ".join(units))]
+    if panel.sort_by == "table":                  # a sort key no unit has: said by check, before any drawing
+        try:
+            sort_keys(rec, units, {}, panel)
+        except DataError as err:
+            return err.problems
     return []
 
 

@@ -35,7 +35,7 @@ def _values(column: np.ndarray) -> list:
     if values and all(v.lower() in ("true", "false") for v in values):
         return [v.lower() == "true" for v in sorted(values, key=lambda v: v.lower() == "true")]
     try:
-        return sorted(values, key=float)
+        return sorted(float(v) for v in values)            # numbers written as text: 40.0 is 40
     except ValueError:
         return values
 
@@ -46,7 +46,10 @@ def split_conditions(rec: Recording, split: ConditionSplit, levels: list[float] 
     one value, a value no trial has, a level shown where a condition has no trial."""
     loc = ("conditions",)
     column = rec.trials[f"where:{split.column}"]
-    values = list(split.values) if split.values is not None else _values(column)
+    level = rec.trials["level"].astype(float)
+    shown_levels = np.asarray(levels if levels is not None else rec.levels, dtype=float)
+    at_levels = np.isin(level, shown_levels)
+    values = list(split.values) if split.values is not None else _values(column[at_levels])
     if len(values) < 2:
         found = ", ".join(shown(v) for v in values) or "no value"
         return [], [Problem(f"splits trials into conditions but the column has one value ({found}) in the "
@@ -61,8 +64,6 @@ def split_conditions(rec: Recording, split: ConditionSplit, levels: list[float] 
         masks.append(hit)
     if problems:
         return [], problems
-    shown_levels = np.asarray(levels if levels is not None else rec.levels, dtype=float)
-    level = rec.trials["level"].astype(float)
     for j, (value, hit) in enumerate(zip(values, masks)):
         lacking = [lv for lv in shown_levels if not (hit & (level == lv)).any()]
         if lacking:

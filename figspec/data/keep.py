@@ -52,8 +52,8 @@ def _matches(values: np.ndarray, condition) -> np.ndarray:
                 np.char.lower(text(values)), ["true", "1"] if option else ["false", "0"])
         elif isinstance(option, (int, float)):
             hit |= numbers(values) == float(option)
-        else:
-            hit |= values.astype(str) == option
+        else:                     # text compares without surrounding spaces (" on" typed by hand is "on")
+            hit |= np.char.strip(values.astype(str)) == option.strip()
     return hit
 
 

@@ -150,8 +150,20 @@ def load_recordings(spec: LoadedSpec, frames: dict) -> dict[str, Recording]:
         try:
             recordings[name] = load_source(src, spec.folder, ("sources", name), units, where, frames.get(name))
         except UserError as err:
-            raise _located(spec, err) from None
+            raise _located(spec, _condition_columns(spec.model, name, err)) from None
     return recordings
+
+
+def _condition_columns(model, name: str, err: UserError) -> UserError:
+    """A condition column the trial table lacks is the panel's mistake: its problem names the
+    panel's ``conditions.column`` rather than the source's selection it was read with."""
+    problems = []
+    for p in err.problems:
+        column = p.loc[4] if p.loc[:4] == ("sources", name, "keep", "where") and len(p.loc) == 5 else None
+        users = [i for i, q in enumerate(model.panels) if q.conditions is not None and q.conditions.column == column
+                 and name in _sources_of(model, q)] if column not in model.sources[name].keep.where else []
+        problems.append(replace(p, loc=("panels", users[0], "conditions", "column")) if users else p)
+    return type(err)(problems)
 
 
 def _sources_of(model, panel) -> list[str]:

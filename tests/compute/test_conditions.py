@@ -1,0 +1,294 @@
+"""Panels split into conditions, checked against computations written here with pandas and
+scipy alone from the demo silencing session's CSV files (invented data), in the layouts a lab
+might have: a boolean column, 0/1, on/off strings, shuffled rows, trials in neither condition.
+
+Sources of the checks: the two-sided Mann-Whitney U test and the Wilcoxon signed-rank test are
+scipy.stats.mannwhitneyu and scipy.stats.wilcoxon (the reference implementations); Holm's
+step-down correction is written out from Holm (1979, Scand J Stat 6:65); Cliff's delta is counted
+pair by pair from its definition P(a > b) - P(a < b) (Cliff 1993, Psychol Bull 114:494); the
+matched-pairs rank-biserial r is (sum of positive ranks - sum of negative ranks) / sum of ranks
+(Kerby 2014, Compr Psychol 3:11); normalising to the control condition's maximum follows the
+normalised response-level functions of Albrecht & Hamilton (1982, J Neurophysiol 48:217)."""
+
+import itertools
+
+import numpy as np
+import pandas as pd
+import pytest
+from scipy.stats import mannwhitneyu, rankdata, wilcoxon
+
+from figspec import pipeline
+from figspec.errors import UserError
+
+from helpers import SPECS, write_spec
+
+DATA = SPECS / "data" / "silencing"
+
+HEAD = """
+[figure]
+title = "t"
+width_mm = 183
+height_mm = 90
+
+[levels]
+quantity = "Sound level"
+unit = "dB SPL"
+scale = "pressure_db"
+
+[stimulus]
+per_trial = true
+
+[analysis]
+response_ms = [0, 60]
+baseline_ms = [-60, 0]
+
+[sources.s1]
+spikes = "SPIKES"
+trials = "TRIALS"
+clock = "session"
+spike_columns = { unit = "unit", trial = "trial", time = "time_s" }
+
+[sources.s1.trial_columns]
+trial = "trial"
+level = "level_db"
+onset = "onset_s"
+offset = "offset_s"
+start = "start_s"
+stop = "stop_s"
+"""
+
+
+def spec(tmp_path, panels: str, trials: pd.DataFrame | None = None, spikes: pd.DataFrame | None = None):
+    trial_file, spike_file = DATA / "s1_trials.csv", DATA / "s1_spikes.csv"
+    if trials is not None:
+        trial_file = tmp_path / "trials.csv"
+        trials.to_csv(trial_file, index=False)
+    if spikes is not None:
+        spike_file = tmp_path / "spikes.csv"
+        spikes.to_csv(spike_file, index=False)
+    text = HEAD.replace("SPIKES", str(spike_file)).replace("TRIALS", str(trial_file)) + panels
+    return write_spec(tmp_path, text)
+
+
+def per_trial_rates(units=("u03",)) -> pd.DataFrame:
+    """Per unit and trial: the rate in 0-60 ms less nothing, and the baseline rate in -60-0 ms."""
+    spikes = pd.read_csv(DATA / "s1_spikes.csv")
+    trials = pd.read_csv(DATA / "s1_trials.csv")
+    joined = spikes[spikes["unit"].isin(units)].merge(trials, on="trial")
+    rel = np.rint(joined["time_s"] * 1e6).astype(np.int64) - np.rint(joined["onset_s"] * 1e6).astype(np.int64)
+    joined = joined.assign(evoked=(rel >= 0) & (rel < 60_000), base=(rel >= -60_000) & (rel < 0))
+    counts = joined.groupby(["unit", "trial"])[["evoked", "base"]].sum()
+    grid = pd.MultiIndex.from_product([list(units), trials["trial"]], names=["unit", "trial"])
+    counts = counts.reindex(grid, fill_value=0).reset_index().merge(trials, on="trial")
+    return counts.assign(rate=counts["evoked"] / 0.060, base_rate=counts["base"] / 0.060)
+
+
+def holm(p: np.ndarray) -> np.ndarray:
+    """Holm (1979): the k-th smallest p times (m - k + 1), made monotone, capped at 1."""
+    order = np.argsort(p)
+    out = np.empty_like(p)
+    running = 0.0
+    for k, i in enumerate(order):
+        running = max(running, min(1.0, (p.size - k) * p[i]))
+        out[i] = running
+    return out
+
+
+def cliffs_delta(a, b) -> float:
+    pairs = list(itertools.product(a, b))
+    return (sum(x > y for x, y in pairs) - sum(x < y for x, y in pairs)) / len(pairs)
+
+
+LEVEL_RESPONSE = """
+[[panels]]
+name = "lr"
+kind = "level_response"
+unit = "u03"
+conditions = { column = "light", values = [false, true], names = ["control", "silenced"] }
+"""
+
+
+def test_level_response_per_condition_and_tests_equal_scipy(tmp_path):
+    tables = pipeline.compute(pipeline.check(spec(tmp_path, LEVEL_RESPONSE))).panels["lr"]
+    rates = per_trial_rates()
+    points = tables["points"]
+    assert list(points["condition"].unique()) == ["control", "silenced"]
+    for (light, level), rows in rates.groupby(["light", "level_db"]):
+        row = points[(points["condition"] == ("silenced" if light else "control")) & (points["level"] == level)]
+        assert int(row["n_trials"].iloc[0]) == len(rows) == 15           # every trial, with or without spikes
+        assert row["response"].iloc[0] == pytest.approx(rows["rate"].mean(), rel=1e-12)
+    tests = tables["tests"].sort_values("level")
+    expected_p = []
+    for level, rows in rates.groupby("level_db"):
+        on, off = rows.loc[rows["light"], "rate"].to_numpy(), rows.loc[~rows["light"], "rate"].to_numpy()
+        ref = mannwhitneyu(on, off, alternative="two-sided")
+        got = tests[tests["level"] == level].iloc[0]
+        assert got["statistic"] == pytest.approx(ref.statistic)
+        assert got["p"] == pytest.approx(ref.pvalue, rel=1e-12)
+        assert got["effect_size"] == pytest.approx(cliffs_delta(on, off), abs=1e-12)
+        assert got["effect_low"] <= got["effect_size"] <= got["effect_high"]
+        assert got["n"] == 30 and got["n_each"] == "15, 15"
+        expected_p.append(ref.pvalue)
+    np.testing.assert_allclose(tests["p_corrected"].to_numpy(), holm(np.array(expected_p)), rtol=1e-12)
+    assert set(tests["comparison"]) == {"silenced vs control"}
+
+
+def test_the_split_equals_the_same_panel_kept_to_each_condition(tmp_path):
+    """A split panel's condition equals the panel restricted with keep.where to that condition."""
+    split = pipeline.compute(pipeline.check(spec(tmp_path, LEVEL_RESPONSE))).panels["lr"]["points"]
+    kept = LEVEL_RESPONSE.replace('conditions = { column = "light", values = [false, true], names = ["control", '
+                                  '"silenced"] }', 'keep = { where = { light = true } }')
+    alone = pipeline.compute(pipeline.check(spec(tmp_path, kept))).panels["lr"]["points"]
+    mine = split[split["condition"] == "silenced"].drop(columns="condition").reset_index(drop=True)
+    pd.testing.assert_frame_equal(mine, alone)
+
+
+@pytest.mark.parametrize("layout", ["zero_one", "on_off", "shuffled_with_extra"])
+def test_lab_layouts_of_the_condition_column_give_the_same_numbers(tmp_path, layout):
+    trials = pd.read_csv(DATA / "s1_trials.csv")
+    values = "[false, true]"
+    if layout == "zero_one":
+        trials["light"] = trials["light"].astype(int)
+        values = "[0, 1]"
+    elif layout == "on_off":
+        trials["light"] = np.where(trials["light"], " on", "off")         # with a stray space, as typed by hand
+        values = '["off", "on"]'
+    else:
+        extra = trials.iloc[:10].assign(trial=trials["trial"].max() + np.arange(1, 11), light="sham",
+                                         onset_s=lambda t: t["onset_s"] + 1000, offset_s=lambda t: t["offset_s"] + 1000,
+                                         start_s=lambda t: t["start_s"] + 1000, stop_s=lambda t: t["stop_s"] + 1000)
+        trials = pd.concat([trials.astype({"light": str}), extra]).sample(frac=1.0, random_state=3)
+        values = '["False", "True"]'
+    panels = LEVEL_RESPONSE.replace("[false, true]", values)
+    reference = pipeline.compute(pipeline.check(spec(tmp_path, LEVEL_RESPONSE))).panels["lr"]
+    resolved = pipeline.check(spec(tmp_path, panels, trials=trials))
+    got = pipeline.compute(resolved).panels["lr"]
+    pd.testing.assert_frame_equal(got["points"], reference["points"])
+    pd.testing.assert_frame_equal(got["tests"], reference["tests"])
+    if layout == "shuffled_with_extra":
+        removed = resolved.panel_conditions["lr"][0].recording.removed
+        assert ("panel lr: trials in none of the conditions (light)", 10) in removed
+
+
+POPULATION = """
+[[panels]]
+name = "pop"
+kind = "population_response"
+fit = "none"
+conditions = { column = "light", values = [false, true], names = ["control", "silenced"] }
+"""
+
+
+def test_population_is_divided_by_the_control_maximum_and_tested_pairwise(tmp_path):
+    tables = pipeline.compute(pipeline.check(spec(tmp_path, POPULATION))).panels["pop"]
+    units = [f"u{i:02d}" for i in range(1, 25)]
+    rates = per_trial_rates(units)
+    rates["response"] = rates["rate"] - rates["base_rate"]
+    means = rates.groupby(["light", "unit", "level_db"])["response"].mean()
+    top = means.loc[False].groupby("unit").max()
+    normalised = means.div(top, level="unit")
+    got = tables["units"].set_index(["condition", "unit", "level"])["normalised"]
+    for light, name in ((False, "control"), (True, "silenced")):
+        np.testing.assert_allclose(got.loc[name].sort_index().to_numpy(),
+                                   normalised.loc[light].sort_index().to_numpy(), rtol=1e-12, atol=1e-15)
+    tests = tables["tests"].set_index("level")
+    ps = []
+    for level in sorted(rates["level_db"].unique()):
+        d = (normalised.loc[True].xs(level, level="level_db") - normalised.loc[False].xs(level, level="level_db"))
+        d = np.round(d.to_numpy(), 12)                  # float noise (1e-18) is no difference
+        ref = wilcoxon(d, alternative="two-sided")
+        assert tests.loc[level, "statistic"] == pytest.approx(ref.statistic)
+        assert tests.loc[level, "p"] == pytest.approx(ref.pvalue, rel=1e-9)
+        r = rankdata(np.abs(d[d != 0]))
+        kerby = (r[d[d != 0] > 0].sum() - r[d[d != 0] < 0].sum()) / r.sum()
+        assert tests.loc[level, "effect_size"] == pytest.approx(kerby, abs=1e-12)
+        assert tests.loc[level, "n"] == 24
+        ps.append(ref.pvalue)
+    np.testing.assert_allclose(tests["p_corrected"].to_numpy(), holm(np.array(ps)), rtol=1e-9)
+
+
+def test_threshold_distribution_by_condition_is_paired(tmp_path):
+    panels = """
+[[panels]]
+name = "d"
+kind = "unit_distribution"
+quantity = "threshold"
+group_by = "condition"
+conditions = { column = "light", values = [false, true], names = ["control", "silenced"] }
+"""
+    tables = pipeline.compute(pipeline.check(spec(tmp_path, panels))).panels["d"]
+    units = tables["units"]
+    assert set(units["group"]) == {"control", "silenced"} and (units["group"] == units["condition"]).all()
+    wide = units[units["shown"] == "filled"].pivot(index="unit", columns="condition", values="value").dropna()
+    ref = wilcoxon((wide["silenced"] - wide["control"]).to_numpy(), alternative="two-sided")
+    test = tables["tests"].iloc[0]
+    assert test["p"] == pytest.approx(ref.pvalue, rel=1e-9) and test["n"] == len(wide)
+    no_value = units[units["shown"] == "no value"]
+    summary = tables["summary"].set_index("group")
+    for name in ("control", "silenced"):             # units without a value are counted, not silently dropped
+        assert summary.loc[name, "n_units"] == 24 - (no_value["condition"] == name).sum()
+
+
+def test_raster_blocks_hold_every_trial_once(tmp_path):
+    panels = """
+[[panels]]
+name = "r"
+kind = "raster"
+unit = "u05"
+draw_as = "ticks"
+conditions = { column = "light" }
+"""
+    table = pipeline.compute(pipeline.check(spec(tmp_path, panels))).panels["r"]
+    assert list(table["condition"].unique()) == ["light = false", "light = true"]      # sorted, false first
+    for level, rows in table.groupby("level"):
+        lines = rows.groupby("condition")["row"].agg(["min", "max", "nunique"])
+        assert lines.loc["light = false", "min"] == 0 and lines.loc["light = false", "max"] == 14
+        assert lines.loc["light = true", "min"] == 15 and lines.loc["light = true", "max"] == 29
+        assert (rows["n_trials"] == 30).all() and (rows["n_condition"] == 15).all()
+        assert lines["nunique"].sum() == 30                                   # silent trials keep their line
+
+
+@pytest.mark.parametrize("panels, message", [
+    ('conditions = { column = "lamp" }', "lamp"),
+    ('conditions = { column = "level_db" }\nlevels = [40]', "has one value"),
+    ('conditions = { column = "light", values = [false, "dim"] }', "no trial has light = 'dim'"),
+])
+def test_bad_condition_columns_are_located_errors(tmp_path, panels, message):
+    text = f'\n[[panels]]\nname = "lr"\nkind = "level_response"\nunit = "u03"\n{panels}\n'
+    with pytest.raises(UserError) as err:
+        pipeline.check(spec(tmp_path, text))
+    assert message in str(err.value)
+    assert "panels[0].conditions" in str(err.value) or "lamp" in str(err.value)
+
+
+def test_a_condition_without_trials_at_a_level_is_an_error(tmp_path):
+    trials = pd.read_csv(DATA / "s1_trials.csv")
+    trials = trials[~(trials["light"] & (trials["level_db"] == 50))]
+    spikes = pd.read_csv(DATA / "s1_spikes.csv")
+    with pytest.raises(UserError) as err:
+        pipeline.check(spec(tmp_path, LEVEL_RESPONSE, trials=trials, spikes=spikes[spikes["trial"].isin(trials["trial"])]))
+    assert "condition light = true has no trial at level(s) 50" in str(err.value)
+    assert "panels[0].conditions.column" in str(err.value)
+
+
+def test_a_paired_test_needs_six_units(tmp_path):
+    text = POPULATION.replace('fit = "none"', 'fit = "none"\nunits = ["u01", "u02", "u03", "u04", "u05"]')
+    with pytest.raises(UserError) as err:
+        pipeline.check(spec(tmp_path, text))
+    assert "at least 6 units" in str(err.value) and "panels[0].conditions.test" in str(err.value)
+
+
+def test_small_multiples_share_one_scale(tmp_path):
+    text = """
+[[panels]]
+name = "sm"
+kind = "level_response"
+units = ["u01", "u02", "u03", "u04", "u05"]
+small_multiples = true
+multiples_columns = 3
+"""
+    resolved = pipeline.check(spec(tmp_path, text))
+    fig = pipeline.draw(resolved, pipeline.compute(resolved))
+    axes = [ax for ax in fig.subfigs[0].axes if ax.get_title()]
+    assert [ax.get_title() for ax in axes] == ["u01", "u02", "u03", "u04", "u05"]
+    assert len({ax.get_ylim() for ax in axes}) == 1 and len({ax.get_xlim() for ax in axes}) == 1
