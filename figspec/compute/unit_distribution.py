@@ -15,14 +15,14 @@ import warnings
 
 import numpy as np
 
-from figspec.compute import level_response
+from figspec.compute import latency, level_response
 from figspec.compute.conditions import FEWEST_PAIRS, paired_tests, stack
 from figspec.compute.describe import About, shown_unit, trial_rows
 from figspec.data.recording import Recording
 from figspec.errors import FigspecWarning, Problem
 from figspec.optional import deferred
 from figspec.spec.models import LevelSpec
-from figspec.spec.panels import LevelResponsePanel, UnitDistributionPanel
+from figspec.spec.panels import LatencyPanel, LevelResponsePanel, UnitDistributionPanel
 
 pd = deferred("pandas")
 
@@ -33,6 +33,37 @@ SHARED = ("levels", "response_ms", "baseline_ms", "subtract_baseline", "measure"
 
 def _units(rec: Recording, panel: UnitDistributionPanel) -> list[str]:
     return panel.unit_names() or list(rec.units)
+
+
+LATENCY_QUANTITIES = ("latency", "t0", "k", "beta")
+LATENCY_SHARED = ("levels", "response_ms", "baseline_ms", "zero_differences", "alpha", "correction", "confidence",
+                  "resamples", "fit_resamples", "seed", "level_axis")
+
+
+def latency_panel(rec: Recording, panel: UnitDistributionPanel) -> LatencyPanel:
+    """The first-spike latency analysis (with a Pieron fit for t0, k, beta) the latency quantities come from."""
+    fields = {k: getattr(panel, k) for k in LATENCY_SHARED}
+    return LatencyPanel.model_validate({**fields, "name": panel.name, "kind": "latency", "units": _units(rec, panel),
+                                        "method": "first_spike",
+                                        "fit": "none" if panel.quantity == "latency" else "pieron"})
+
+
+def analysed_params(rec: Recording, panel: UnitDistributionPanel, levels: LevelSpec) -> tuple[pd.DataFrame, pd.DataFrame]:
+    """(trials per unit and level, a long table of per-unit quantities as the fit tables list
+    them) from the analysis the panel's quantity comes from."""
+    with warnings.catch_warnings():                 # each unit's fit is reported in the table, counted in the legend
+        warnings.simplefilter("ignore", FigspecWarning)
+        if panel.quantity not in LATENCY_QUANTITIES:
+            analysed = level_response.compute(rec, analysis_panel(rec, panel), levels)
+            return analysed["points"][["unit", "level", "n_trials"]], analysed["params"]
+        analysed = latency.compute(rec, latency_panel(rec, panel), levels)
+    params = analysed["params"]
+    if panel.quantity == "latency":
+        at = analysed["points"][analysed["points"]["level"] == panel.at_level]
+        params = pd.DataFrame([[r.unit, "none", "latency", r.latency_ms, r.ci_low_ms, r.ci_high_ms, "ms",
+                                f"median first-spike latency at {panel.at_level:g}; no spike in {r.n_no_spike} of "
+                                f"{r.n_trials} trials"] for r in at.itertuples()], columns=params.columns)
+    return analysed["points"][["unit", "level", "n_trials"]], params
 
 
 def analysis_panel(rec: Recording, panel: UnitDistributionPanel) -> LevelResponsePanel:
@@ -54,16 +85,13 @@ def compute(rec: Recording, panel: UnitDistributionPanel, levels: LevelSpec) -> 
     """``units`` (unit, group, value, value_unit, fit_status, shown: filled / open / left out / no
     value), ``summary`` (group, n_units, median, q25, q75), ``trials`` (unit, level, n_trials)
     and, with a test, ``test`` (groups, n, U, p, rank-biserial r with its interval)."""
-    with warnings.catch_warnings():                 # each unit's fit is reported in the table, counted in the legend
-        warnings.simplefilter("ignore", FigspecWarning)
-        analysed = level_response.compute(rec, analysis_panel(rec, panel), levels)
-    params = analysed["params"]
+    trials, params = analysed_params(rec, panel, levels)
     key = "threshold_by_test" if panel.quantity == "threshold" else panel.quantity
     rows = []
     for unit in _units(rec, panel):
         mine = params[params["unit"] == unit].set_index("quantity")
         value = float(mine.loc[key, "value"]) if key in mine.index else np.nan
-        status = "ok" if panel.quantity == "threshold" else str(mine.loc["status", "note"]).split(":")[0] \
+        status = "ok" if panel.quantity in ("threshold", "latency") else str(mine.loc["status", "note"]).split(":")[0] \
             if "status" in mine.index else "failed"
         if not np.isfinite(value) or status == "failed":
             shown = "no value"
@@ -79,7 +107,7 @@ def compute(rec: Recording, panel: UnitDistributionPanel, levels: LevelSpec) -> 
                             for g, v in ((g, used.loc[used["group"] == g, "value"].to_numpy(dtype=float))
                                          for g in units["group"].unique())],
                            columns=["group", "n_units", "median", "q25", "q75"])
-    out = {"units": units, "summary": summary, "trials": analysed["points"][["unit", "level", "n_trials"]]}
+    out = {"units": units, "summary": summary, "trials": trials}
     if panel.test == "mann_whitney":
         out["test"] = mann_whitney(used, panel)
     return out
@@ -111,6 +139,10 @@ def mann_whitney(used: pd.DataFrame, panel: UnitDistributionPanel) -> pd.DataFra
 
 def check(rec: Recording, panel: UnitDistributionPanel, levels: LevelSpec) -> list[Problem]:
     units = _units(rec, panel)
+    shown_levels = panel.levels if panel.levels is not None else rec.levels.tolist()
+    if panel.at_level is not None and panel.at_level not in shown_levels:
+        return [Problem(f"not a level the panel shows ({', '.join(f'{v:g}' for v in shown_levels)})", ("at_level",),
+                        f"{panel.at_level:g}")]
     if len(set(units)) < 2:
         return [Problem(f"a distribution across units needs at least two units; it has {len(set(units))}", ("units",))]
     if panel.conditions is not None and panel.conditions.test and len(set(units)) < FEWEST_PAIRS:
@@ -146,8 +178,10 @@ def statistics(panel: UnitDistributionPanel, tables: dict[str, pd.DataFrame]) ->
 
 def legend(panel: UnitDistributionPanel, tables: dict[str, pd.DataFrame], about: About) -> str:
     units, summary = tables["units"], tables["summary"]
-    what = "threshold by test (the lowest level whose Holm-corrected test against baseline is significant)" \
-        if panel.quantity == "threshold" else f"Naka–Rushton {panel.quantity} of each unit's own fit"
+    what = {"threshold": "threshold by test (the lowest level whose Holm-corrected test against baseline is significant)",
+            "latency": f"median first-spike latency at {panel.at_level or 0:g} {about.level_unit} (trials with a spike)"}.get(
+        panel.quantity, f"{'Piéron' if panel.quantity in LATENCY_QUANTITIES else 'Naka–Rushton'} {panel.quantity} "
+                        "of each unit's own fit")
     counts = units["shown"].value_counts()
     what_counts = "unit-condition values" if "condition" in units.columns else "units"
     groups = "; ".join(f"{r.group}: n = {r.n_units}" for r in summary.itertuples())

@@ -52,13 +52,19 @@ def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LatencyPanel, ctx: 
         mark_differences(ax, tables["tests"], points, "ci_high_ms", panel.alpha)
     own_limits(ax, limits(panel, tables))            # offset artists do not enter matplotlib's autoscaling
     handles, names = ax.get_legend_handles_labels()
-    if len(colours) == 1:
+    if "condition" in points.columns:            # conditions differ by line style too: the key shows it
+        from matplotlib.lines import Line2D
+
+        handles = [Line2D([], [], color=c, marker=m, linestyle=dash) for _, _, c, m, dash, _ in lines]
+        names = [label for *_, label in lines]
+    if len(colours) == 1:                        # one line: the key explains markers only
         handles, names = [], []
     title = (f"open: p \u2265 {panel.alpha:g} ({points['correction'].iloc[0]})" if (~points["responsive"]).any()
              else None)
     if handles or title:                      # "best": where the fewest data points are
         ax.legend(handles, names, title=title, loc="best", title_fontsize=ctx.style.font.tick_pt,
-                  handletextpad=0.2, borderaxespad=0.2)
+                  handletextpad=0.2, borderaxespad=0.2,
+                  handlelength=2.2 if "condition" in points.columns else None)
 
 
 def labels(panel: LatencyPanel, tables: dict[str, pd.DataFrame], levels: LevelSpec) -> Labels:

@@ -63,17 +63,21 @@ def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LevelResponsePanel,
     if "condition" in params.columns:            # one mark per unit: the first condition's threshold
         thresholds = thresholds[thresholds["condition"] == points["condition"].iloc[0]]
     thresholds = thresholds.set_index("unit")["value"].dropna()
-    colours = unit_colour
     for level, units in thresholds.groupby(thresholds, sort=False).groups.items():
         # units with one threshold level sit side by side, one marker width apart: none hides another
         for unit, dx in zip(units, (np.arange(len(units)) - (len(units) - 1) / 2) * ctx.style.summary.marker_pt):
-            ax.plot([level], [0.0], marker=6, color=colours[unit], clip_on=False, linestyle="none", in_layout=False,
+            ax.plot([level], [0.0], marker=6, color=unit_colour[unit], clip_on=False, linestyle="none", in_layout=False,
                     transform=shifted(ax, ax.get_xaxis_transform(), float(dx)), gid=f"threshold:{unit}")
     if panel.subtract_baseline:
         ax.axhline(0.0, color="0.6", linewidth=ctx.style.axes.line_pt, zorder=0)
     own_limits(ax, limits(panel, tables))            # offset artists do not enter matplotlib's autoscaling
     handles, names = ax.get_legend_handles_labels()
-    if len(colours) == 1:                        # one unit: the key explains markers only
+    if "condition" in points.columns:            # conditions differ by line style too: the key shows it
+        from matplotlib.lines import Line2D
+
+        handles = [Line2D([], [], color=c, marker=m, linestyle=dash) for _, _, c, m, dash, _ in lines]
+        names = [label for *_, label in lines]
+    if len(colours) == 1:                        # one line: the key explains markers only
         handles, names = [], []
     if tested:
         from matplotlib.lines import Line2D
@@ -84,7 +88,8 @@ def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LevelResponsePanel,
     if not handles and title is None:
         return
     ax.legend(handles, names, title=title, loc="upper left", title_fontsize=ctx.style.font.tick_pt,
-              handletextpad=0.2, borderaxespad=0.2, alignment="left")
+              handletextpad=0.2, borderaxespad=0.2,
+                  handlelength=2.2 if "condition" in points.columns else None, alignment="left")
 
 
 def labels(panel: LevelResponsePanel, tables: dict[str, pd.DataFrame], levels: LevelSpec) -> Labels:

@@ -80,14 +80,19 @@ def _lines(fig, profile: Profile) -> list[Finding]:
 
 
 def categorical_colours(fig, categories: dict[str, Callable]) -> dict[str, dict[str, tuple]]:
-    """Per panel, the colour of each category (unit) drawn with a palette colour."""
+    """Per panel (per axes, in a panel of several axes such as small multiples, where only the
+    categories sharing one axes must be told apart), the colour of each category drawn with a
+    palette colour."""
     out: dict[str, dict[str, tuple]] = {}
     for sub in fig.subfigs:
         read = categories.get(sub.get_gid())
-        if read is not None:
-            found = read(sub.findobj(lambda a: a.get_visible()))
-            if found:
-                out[sub.get_gid()] = found
+        if read is None:
+            continue
+        each = [found for ax in sub.axes if (found := read(ax.findobj(lambda a: a.get_visible())))]
+        if len(each) == 1:
+            out[sub.get_gid()] = each[0]
+        for k, found in enumerate(each if len(each) > 1 else []):
+            out[f"{sub.get_gid()} (axes {k + 1})"] = found
     return out
 
 

@@ -11,7 +11,7 @@ from typing import Annotated, Literal, Union
 
 from pydantic import Field, ValidationInfo, field_validator, model_validator
 
-from figspec.spec.fields import MAX_BINS, Magnitude, PositiveMs, Seed, Text, WindowMs
+from figspec.spec.fields import MAX_BINS, Level, Magnitude, PositiveMs, Seed, Text, WindowMs
 from figspec.spec.panel_base import PanelBase, Probability, Step, SummaryPanel, TimePanel
 
 class RasterPanel(TimePanel):
@@ -258,7 +258,11 @@ class UnitDistributionPanel(SummaryPanel):
     "source"``. Quantities come from each unit's own response-level analysis (as
     ``level_response`` computes it, with ``response_ms``, ``baseline_ms``, ``subtract_baseline``):
     the Naka-Rushton parameters ``L50``, ``n``, ``Rmax``, ``R0``, or ``threshold`` (the lowest
-    level whose corrected test against baseline is significant). Units whose fit is poorly
+    level whose corrected test against baseline is significant); or from each unit's first-spike
+    latencies (as ``latency`` computes them): ``latency``, the median at ``at_level``, or the
+    Pieron parameters ``t0``, ``k``, ``beta``. ``view = "cumulative"`` draws each group's
+    cumulative distribution (the fraction of units at or below each value) instead of points.
+    Units whose fit is poorly
     constrained are drawn open and counted (``poorly_constrained = "apart"``), left out and
     counted (``"leave_out"``), or drawn as the others (``"include"``); units whose fit failed have no
     value and are counted. With two sources, ``test = "mann_whitney"`` compares them (two-sided
@@ -269,7 +273,9 @@ class UnitDistributionPanel(SummaryPanel):
 
     kind: Literal["unit_distribution"]
     units: Annotated[list[str], Field(min_length=2)] | Literal["all"] = "all"
-    quantity: Literal["L50", "n", "Rmax", "R0", "threshold"] = "L50"
+    quantity: Literal["L50", "n", "Rmax", "R0", "threshold", "latency", "t0", "k", "beta"] = "L50"
+    at_level: Level | None = None
+    view: Literal["strip", "cumulative"] = "strip"
     group_by: Literal["none", "source", "condition"] = "none"
     poorly_constrained: Literal["apart", "leave_out", "include"] = "apart"
     test: Literal["mann_whitney", "none"] = "none"
@@ -291,6 +297,9 @@ class UnitDistributionPanel(SummaryPanel):
         if self.small_multiples:
             raise ValueError("a distribution is one axes across units: small_multiples is for level_response "
                              "and latency")
+        if (self.quantity == "latency") != (self.at_level is not None):
+            raise ValueError("quantity = 'latency' is the median first-spike latency at one level: set at_level "
+                             "(and at_level only with it)")
         if self.unit is not None:
             raise ValueError("a distribution across units shows several units: use units = [...] or units = 'all'")
         return self
@@ -299,7 +308,9 @@ class UnitDistributionPanel(SummaryPanel):
         return False                 # units are thin grey lines or points of one colour
 
     def fitted_model(self) -> str | None:
-        return None if self.quantity == "threshold" else "naka_rushton"
+        if self.quantity in ("threshold", "latency"):
+            return None
+        return "pieron" if self.quantity in ("t0", "k", "beta") else "naka_rushton"
 
 
 PANEL_MODELS = (RasterPanel, PsthPanel, LevelResponsePanel, LatencyPanel, PopulationHeatmapPanel,

@@ -292,3 +292,39 @@ multiples_columns = 3
     axes = [ax for ax in fig.subfigs[0].axes if ax.get_title()]
     assert [ax.get_title() for ax in axes] == ["u01", "u02", "u03", "u04", "u05"]
     assert len({ax.get_ylim() for ax in axes}) == 1 and len({ax.get_xlim() for ax in axes}) == 1
+
+
+def test_latency_at_a_level_per_condition_equals_medians_by_hand(tmp_path):
+    """The median first-spike time in [0, 60) ms of the trials with a spike there, per unit and
+    condition at 70 dB SPL (numpy.median), and the paired test on them (scipy.stats.wilcoxon)."""
+    panels = """
+[[panels]]
+name = "d"
+kind = "unit_distribution"
+quantity = "latency"
+at_level = 70
+group_by = "condition"
+view = "cumulative"
+conditions = { column = "light", values = [false, true], names = ["off", "on"] }
+"""
+    tables = pipeline.compute(pipeline.check(spec(tmp_path, panels))).panels["d"]
+    spikes = pd.read_csv(DATA / "s1_spikes.csv")
+    trials = pd.read_csv(DATA / "s1_trials.csv")
+    joined = spikes.merge(trials[trials["level_db"] == 70], on="trial")
+    rel = (np.rint(joined["time_s"] * 1e6).astype(np.int64) - np.rint(joined["onset_s"] * 1e6).astype(np.int64)) / 1e3
+    joined = joined.assign(ms=rel)[(rel >= 0) & (rel < 60)]
+    first = joined.groupby(["light", "unit", "trial"])["ms"].min()
+    median = first.groupby(["light", "unit"]).median()
+    got = tables["units"].set_index(["condition", "unit"])["value"]
+    for light, name in ((False, "off"), (True, "on")):
+        np.testing.assert_allclose(got.loc[name].sort_index().to_numpy(), median.loc[light].sort_index().to_numpy(),
+                                   rtol=1e-12)
+    d = np.round((median.loc[True] - median.loc[False]).to_numpy(), 12)
+    assert tables["tests"]["p"].iloc[0] == pytest.approx(wilcoxon(d, alternative="two-sided").pvalue, rel=1e-9)
+
+
+def test_a_latency_quantity_needs_a_level_the_panel_shows(tmp_path):
+    panels = '\n[[panels]]\nname = "d"\nkind = "unit_distribution"\nquantity = "latency"\nat_level = 75\n'
+    with pytest.raises(UserError) as err:
+        pipeline.check(spec(tmp_path, panels))
+    assert "panels[0].at_level: not a level the panel shows" in str(err.value)
