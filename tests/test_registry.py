@@ -78,3 +78,57 @@ def test_the_journal_check_reads_every_kind(rendered):
     _, result = rendered
     assert result.profile is not None
     assert all(f.panel != "figure" or f.rule in ("width", "height") for f in result.findings)
+
+
+SPLIT_HEAD = """
+[figure]
+title = "t"
+width_mm = 183
+height_mm = 60
+
+[levels]
+quantity = "Sound level"
+unit = "dB SPL"
+scale = "pressure_db"
+
+[stimulus]
+per_trial = true
+
+[sources.s1]
+spikes = "@DATA@/silencing/s1_spikes.csv"
+trials = "@DATA@/silencing/s1_trials.csv"
+clock = "session"
+spike_columns = { unit = "unit", trial = "trial", time = "time_s" }
+
+[sources.s1.trial_columns]
+trial = "trial"
+level = "level_db"
+onset = "onset_s"
+offset = "offset_s"
+start = "start_s"
+stop = "stop_s"
+
+[[panels]]
+name = "split"
+"""
+
+
+@pytest.mark.parametrize("kind", KINDS)
+def test_every_kind_splits_by_conditions_or_refuses_with_a_reason(tmp_path, kind):
+    """With conditions, every table of the panel has a condition column and the figure is written;
+    a kind that cannot split says why, at the panel's key."""
+    from figspec.errors import UserError
+
+    extra = 'group_by = "condition"\nquantity = "threshold"\n' if kind == "unit_distribution" else ""
+    units = "" if population(kind) else 'unit = "u02"\nlevels = [40, 80]\n'
+    text = SPLIT_HEAD + f'kind = "{kind}"\n{units}{extra}conditions = {{ column = "light" }}\n'
+    path = write_spec(tmp_path, text)
+    try:
+        result = pipeline.render(path, tmp_path / "out")
+    except UserError as err:
+        assert kind == "population_heatmap" and "panels[0]: a heatmap shows one condition" in str(err)
+        return
+    tables = [pd.read_csv(p) for p in (tmp_path / "out" / "spec_data").glob("split*.csv")
+              if not p.name.endswith("_tests.csv")]
+    assert tables and all("condition" in t.columns for t in tables)
+    assert {"spec.svg", "spec.pdf", "spec.png"} <= {p.name for p in result.files}

@@ -208,7 +208,10 @@ def statistics(panel: LatencyPanel, tables: dict[str, pd.DataFrame]) -> list[lis
     for r in tables["points"].itertuples(index=False):
         note = f"{r.method}; no spike in {r.n_no_spike} trials" if pd.notna(r.n_no_spike) else r.method
         rows += [["trials", panel.name, r.unit, r.level, "n_trials", int(r.n_trials), None, None, ""],
-                 ["latency", panel.name, r.unit, r.level, "latency_ms", r.latency_ms, r.ci_low_ms, r.ci_high_ms, note]]
+                 ["latency", panel.name, r.unit, r.level, "latency_ms", r.latency_ms, r.ci_low_ms, r.ci_high_ms, note],
+                 ["test", panel.name, r.unit, r.level, "p_corrected", r.p_corrected, None, None,
+                  f"one-sided Wilcoxon signed-rank, response vs baseline rate per trial, n = {int(r.n_trials)} trials; "
+                  f"{r.correction}; open marker when p >= {panel.alpha:g}"]]
     return rows + fit_rows(panel, tables["params"])
 
 

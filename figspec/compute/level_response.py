@@ -6,7 +6,7 @@ from __future__ import annotations
 import numpy as np
 
 from figspec.compute import level_checks
-from figspec.compute.conditions import trial_tests
+from figspec.compute.conditions import matched_rank_biserial, trial_tests
 from figspec.compute.describe import OFFSET_SENTENCE, About, count_text, unit_text, window_columns
 from figspec.compute.fit_tables import UnitPoints, empty_params, fit_rows, fit_sentence, fit_tables
 from figspec.compute.resampling import generator
@@ -65,6 +65,9 @@ def response_points(rec: Recording, panel: LevelResponsePanel, values: dict | No
     statistic, p : one-sided Wilcoxon signed-rank test of evoked > baseline per trial (counts,
         or rates for ``spikes_per_s``; zero differences treated as ``zero_differences``
         says), empty when all differences are zero.
+    effect_size, effect_low, effect_high : the matched-pairs rank-biserial correlation of evoked
+        vs baseline per trial (Kerby 2014; zero differences dropped) with its percentile bootstrap
+        interval over trials (``confidence``, ``resamples``).
     p_corrected : p corrected across the levels of the unit (``correction``: Holm, or none).
     correction : how.
     significant : p_corrected < alpha.
@@ -85,9 +88,11 @@ def response_points(rec: Recording, panel: LevelResponsePanel, values: dict | No
                 low, high = bootstrap_ci(v, np.mean, panel.confidence, panel.resamples, generator(panel.seed, unit, lv))
                 kind = f"{panel.confidence:.0%} bootstrap CI of the mean"
             stat, p = signed_rank_p(e, b, panel.zero_differences) if panel.test == "wilcoxon" else (np.nan, np.nan)
-            unit_rows.append([unit, lv, e.size, mean, low, high, float(b.mean()), kind, stat, p])
+            effect = baseline_effect(e, b, panel, unit, lv) if panel.test == "wilcoxon" else (np.nan,) * 3
+            unit_rows.append([unit, lv, e.size, mean, low, high, float(b.mean()), kind, stat, p, *effect])
         frame = pd.DataFrame(unit_rows, columns=["unit", "level", "n_trials", "response", "error_low",
-                                                 "error_high", "baseline", "error_kind", "statistic", "p"])
+                                                 "error_high", "baseline", "error_kind", "statistic", "p",
+                                                 "effect_size", "effect_low", "effect_high"])
         frame["p_corrected"] = corrected(frame["p"].to_numpy(), panel.correction)
         frame["correction"] = CORRECTION_SHORT[panel.correction]
         frame["significant"] = frame["p_corrected"] < panel.alpha
@@ -97,6 +102,19 @@ def response_points(rec: Recording, panel: LevelResponsePanel, values: dict | No
     out["test"] = (f"Wilcoxon signed-rank, one-sided, zero differences {ZERO_TEXT[panel.zero_differences]}, "
                    f"{CORRECTION_SHORT[panel.correction]}" if panel.test == "wilcoxon" else "none")
     return out.assign(**window_columns(panel))
+
+
+def baseline_effect(evoked: np.ndarray, baseline: np.ndarray, panel, unit: str, level: float) -> tuple[float, ...]:
+    """(r, low, high): the matched-pairs rank-biserial r of evoked vs baseline per trial and its
+    percentile bootstrap interval over trials (seeded apart from the error bars' bootstrap)."""
+    d = np.round(np.asarray(evoked, dtype=float) - baseline, 12)
+    if d.size < 2 or np.all(d == 0):
+        return np.nan, np.nan, np.nan
+    rng = generator(panel.seed, f"{unit}:effect", level)
+    boot = matched_rank_biserial(d[rng.integers(0, d.size, (panel.resamples, d.size))])
+    tail = (1 - panel.confidence) / 2
+    low, high = np.quantile(boot, [tail, 1 - tail])
+    return float(matched_rank_biserial(d)[0]), float(low), float(high)
 
 
 # SEM of one spike among n trials: values (1, 0, ..., 0) have SD sqrt(1/n) and SEM 1/n (spikes),
@@ -142,7 +160,11 @@ def statistics(panel: LevelResponsePanel, tables: dict[str, pd.DataFrame]) -> li
         if pd.notna(r.p):
             note = f"{r.test}; significant={bool(r.significant)}"
             rows += [["test", panel.name, r.unit, r.level, name, value, None, None, note]
-                     for name, value in (("statistic", r.statistic), ("p", r.p), ("p_corrected", r.p_corrected))]
+                     for name, value in (("statistic", r.statistic), ("n", float(r.n_trials)), ("p", r.p),
+                                         ("p_corrected", r.p_corrected))]
+            rows.append(["test", panel.name, r.unit, r.level, "matched-pairs rank-biserial r", r.effect_size,
+                         r.effect_low, r.effect_high, f"evoked vs baseline per trial; {panel.confidence:.0%} "
+                         "percentile bootstrap over trials"])
     return rows + fit_rows(panel, tables["params"])
 
 
@@ -157,7 +179,9 @@ def legend(panel: LevelResponsePanel, tables: dict[str, pd.DataFrame], about: Ab
         text += (f" One-sided Wilcoxon signed-rank test of evoked vs baseline {compared} per trial "
                  f"({panel.baseline_ms[0]:g}–{panel.baseline_ms[1]:g} ms) per level, trials with equal values "
                  f"{ZERO_TEXT[panel.zero_differences]}, {CORRECTION_TEXT[panel.correction]}; filled "
-                 f"markers: p < {panel.alpha:g}.")
+                 f"markers: p < {panel.alpha:g}; n = the trials of each level; each test's statistic, raw and "
+                 "corrected p and effect size (matched-pairs rank-biserial r with its "
+                 f"{panel.confidence:.0%} bootstrap interval) are in the statistics table.")
     if points["unit"].nunique() > 1:
         text += f" {OFFSET_SENTENCE}"
     if panel.fit != "none":

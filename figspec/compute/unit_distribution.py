@@ -169,8 +169,12 @@ def statistics(panel: UnitDistributionPanel, tables: dict[str, pd.DataFrame]) ->
               f"n = {r.n_units} units; interval: interquartile range"] for r in tables["summary"].itertuples()]
     for r in tables.get("test", pd.DataFrame()).itertuples():
         rows += [["test", panel.name, f"{r.group_a} vs {r.group_b}", None, "U", r.U, None, None, r.test],
+                 ["test", panel.name, f"{r.group_a} vs {r.group_b}", None, "n", float(r.n_a + r.n_b), None, None,
+                  f"units ({r.n_a} and {r.n_b} per group)"],
                  ["test", panel.name, f"{r.group_a} vs {r.group_b}", None, "p", r.p, None, None,
                   f"n = {r.n_a} and {r.n_b} units"],
+                 ["test", panel.name, f"{r.group_a} vs {r.group_b}", None, "p_corrected", r.p, None, None,
+                  "a single test: no correction"],
                  ["test", panel.name, f"{r.group_a} vs {r.group_b}", None, "rank-biserial r", r.r, r.r_ci_low,
                   r.r_ci_high, f"{r.confidence:.0%} percentile bootstrap over units"]]
     return rows

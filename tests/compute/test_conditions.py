@@ -328,3 +328,26 @@ def test_a_latency_quantity_needs_a_level_the_panel_shows(tmp_path):
     with pytest.raises(UserError) as err:
         pipeline.check(spec(tmp_path, panels))
     assert "panels[0].at_level: not a level the panel shows" in str(err.value)
+
+
+def test_the_baseline_test_reports_its_effect_size(tmp_path):
+    """Each level's evoked-vs-baseline effect: the matched-pairs rank-biserial r (Kerby 2014) of the
+    per-trial rate differences, zero differences dropped, counted here from scipy.stats.rankdata."""
+    text = LEVEL_RESPONSE.replace('conditions = { column = "light", values = [false, true], names = ["control", '
+                                  '"silenced"] }', 'keep = { where = { light = false } }')
+    resolved = pipeline.check(spec(tmp_path, text))
+    tables = pipeline.compute(resolved).panels["lr"]
+    rates = per_trial_rates()
+    rates = rates[~rates["light"]]
+    for level, rows in rates.groupby("level_db"):
+        d = np.round((rows["rate"] - rows["base_rate"]).to_numpy(), 12)
+        d = d[d != 0]
+        r = rankdata(np.abs(d))
+        kerby = (r[d > 0].sum() - r[d < 0].sum()) / r.sum()
+        got = tables["points"].set_index("level").loc[level]
+        assert got["effect_size"] == pytest.approx(kerby, abs=1e-12)
+        assert got["effect_low"] <= got["effect_size"] <= got["effect_high"]
+    from figspec.steps.save import statistics
+    stats = statistics(resolved, pipeline.compute(resolved))
+    tested = stats[(stats["section"] == "test") & (stats["panel"] == "lr")]
+    assert {"statistic", "n", "p", "p_corrected", "matched-pairs rank-biserial r"} <= set(tested["quantity"])
