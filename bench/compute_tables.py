@@ -33,7 +33,8 @@ def recording(n_spikes: int, trials_per_level: int, seed: int = 3):
     drive = 1 / (1 + 10 ** (1.5 * (40 - level[trial]) / 20))   # saturating with level
     evoked = rng.random(trial.size) < 0.1 + 0.6 * drive
     rel = np.where(evoked, rng.uniform(0.004, 0.06, trial.size), rng.uniform(-0.2, 0.4, trial.size))
-    spikes = pd.DataFrame({"unit": "u1", "key0": trial, "time": onset[trial] + rel})
+    spikes = pd.DataFrame({"unit": "u1", "key0": trial, "time": onset[trial] + np.round(rel, 6)})
+    spikes = spikes.drop_duplicates(ignore_index=True)        # two spikes of one unit in one microsecond: none
     trials = pd.DataFrame({"key0": np.arange(level.size), "level": level, "onset": onset, "offset": onset + 0.05})
     return assemble(spikes, trials, Layout(where="bench", locs={}, clock="session"))
 

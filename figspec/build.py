@@ -190,10 +190,16 @@ def build(specs: Sequence[Path], options: BuildOptions, jobs: int = 1, runner: R
         from concurrent.futures import ProcessPoolExecutor, as_completed
 
         context = multiprocessing.get_context("spawn")      # a fresh interpreter: no state shared
-        with ProcessPoolExecutor(max_workers=min(jobs, len(stale)), mp_context=context) as pool:
+        pool = ProcessPoolExecutor(max_workers=min(jobs, len(stale)), mp_context=context,
+                                   initializer=die_with_parent, initargs=(os.getpid(),))
+        try:
             futures = [pool.submit(render_one, name, options, why) for name, why in stale.items()]
             for future in as_completed(futures):
                 finished(future.result())
+        except BaseException:                    # Ctrl-C, or a crash here: no worker outlives the build
+            stop_workers(pool)
+            raise
+        pool.shutdown()
     if options.read_cache is not None:
         from figspec.data.read_cache import remove
 
@@ -283,3 +289,46 @@ def summary_table(results: Sequence[SpecResult]) -> str:
     counts = {s: sum(r.status == s for r in results) for s in ("rendered", "skipped", "failed")}
     lines.append(", ".join(f"{n} {s}" for s, n in counts.items()) + f"; {sum(r.seconds for r in results):.1f} s of work")
     return "\n".join(lines)
+
+
+WATCH_S = 0.5          # how often a worker checks that the build's main process still runs
+
+
+def die_with_parent(parent: int) -> None:
+    """Worker initializer: the worker ends when the build's main process is gone (killed or
+    crashed), so no worker keeps rendering or holding memory after it. On Linux the kernel sends
+    SIGKILL on the parent's death (prctl PR_SET_PDEATHSIG); everywhere a thread also checks the
+    parent every half second. Ctrl-C in the terminal reaches the main process, which stops the
+    workers (:func:`stop_workers`); the workers themselves ignore it."""
+    import signal
+    import threading
+    import time
+
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+    if sys.platform.startswith("linux"):
+        try:
+            import ctypes
+
+            ctypes.CDLL(None, use_errno=True).prctl(1, signal.SIGKILL)      # 1: PR_SET_PDEATHSIG
+        except (OSError, AttributeError):
+            pass
+    if os.getppid() != parent:
+        os._exit(1)
+
+    def watch() -> None:
+        while os.getppid() == parent:
+            time.sleep(WATCH_S)
+        os._exit(1)
+
+    threading.Thread(target=watch, name="figspec-parent-watch", daemon=True).start()
+
+
+def stop_workers(pool) -> None:
+    """End a process pool now: queued renders cancelled, running workers terminated (their output
+    sets are written whole or not at all, see output.output_set)."""
+    pool.shutdown(wait=False, cancel_futures=True)
+    for process in list(getattr(pool, "_processes", {}).values()):
+        if process.is_alive():
+            process.terminate()
+    for process in list(getattr(pool, "_processes", {}).values()):
+        process.join(timeout=5)

@@ -134,10 +134,14 @@ def run(argv: Sequence[str] | None = None) -> int:
     if args.command == "watch":
         return _watch(args)
     if args.command == "schema":
+        from figspec.output.safe_write import write_text
         from figspec.spec.schema import schema_text
 
         if args.output:
-            Path(args.output).write_text(schema_text(), encoding="utf-8")
+            try:
+                write_text(args.output, schema_text(), make_parents=False)
+            except UserError as err:
+                return _failed(err)
             print(f"wrote {args.output}")
         else:
             sys.stdout.write(schema_text())
@@ -245,7 +249,10 @@ def _watch(args: argparse.Namespace) -> int:
     except UserError as err:
         return _failed(err)
     preview = Preview(spec[0], options, lambda line: print(line, flush=True))
-    preview.render()
+    try:
+        preview.render()
+    except UserError as err:
+        return _failed(err)
     print(f"open {(Path(args.outdir) / 'index.html').resolve().as_uri()} ; watching "
           f"{len(preview.files)} files (Ctrl-C stops)", flush=True)
     try:
@@ -296,5 +303,7 @@ def main(argv: Sequence[str] | None = None) -> None:
     try:
         code = run(argv)
     except KeyboardInterrupt:
+        print("figspec: interrupted (Ctrl-C); every output set written is whole, unfinished ones were not written",
+              file=sys.stderr)
         code = 130
     sys.exit(code)

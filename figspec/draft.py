@@ -16,6 +16,7 @@ import re
 import sys
 from pathlib import Path
 
+from figspec.output.safe_write import write_text
 from figspec.data.survey import Guess, Survey, read_any, read_nwb, survey
 
 NICE_STEPS_MS = (1, 2, 5, 10, 20, 25, 50, 100, 200, 250, 500, 1000, 2000, 5000)
@@ -29,7 +30,19 @@ def _toml(value) -> str:
         return "true" if value else "false"
     if isinstance(value, (int, float)):
         return f"{value:g}"
-    return json.dumps(str(value), ensure_ascii=False)
+    # JSON escapes every control character TOML forbids in a basic string except DEL
+    return json.dumps(str(value), ensure_ascii=False).replace("\x7f", "\\u007f")
+
+
+def plain(text) -> str:
+    """Text from the data as one harmless comment line: control characters and line or paragraph
+    separators (a unit name holding a line break would otherwise start a new TOML line in the
+    draft) written as ``\\uXXXX``, and at most 200 characters."""
+    import unicodedata
+
+    out = "".join(f"\\u{ord(c):04x}" if unicodedata.category(c) in ("Cc", "Cf", "Zl", "Zp") else c
+                  for c in str(text))
+    return out if len(out) <= 200 else out[:197] + "..."
 
 
 def _key(name: str) -> str:
@@ -48,6 +61,7 @@ def _line(key: str, value, guess: Guess | None = None, note: str | None = None) 
         comments.append(note)
     if not comments:
         return text
+    comments = [plain(c) for c in comments]
     pad = " " * max(1, 28 - len(text))
     return text + pad + "# " + comments[0] + "".join(f"\n{' ' * (len(text) + len(pad))}# {c}" for c in comments[1:])
 
@@ -89,7 +103,7 @@ def draft_text(s: Survey, spec_path: Path) -> str:
     w = windows(s)
     files = [s.spikes.path] + ([s.trials.path] if s.trials is not None and s.trials.path != s.spikes.path else [])
     out = [f"#:schema {_relative(SHIPPED, folder)}",
-           f"#  First draft by `figspec draft` from {' and '.join(_relative(p, folder) for p in files)}.",
+           f"#  First draft by `figspec draft` from {plain(' and '.join(_relative(p, folder) for p in files))}.",
            "#  Lines marked 'guess:' are figspec's reading of the files: check each one. Lines marked",
            "#  'question:' need your answer. The keys are explained in figspec's README.",
            "", "[figure]",
@@ -99,7 +113,7 @@ def draft_text(s: Survey, spec_path: Path) -> str:
            "[levels]",
            _line("quantity", "Level", note="question: what was varied (e.g. \"Sound level\", \"Contrast\")?"),
            _line("unit", s.level_unit.value, s.level_unit),
-           f"#  levels in the data (trials): {level_values}", ""]
+           f"#  levels in the data (trials): {plain(level_values)}", ""]
     out += ["[stimulus]"]
     if s.stimulus_ms is not None:
         out += [_line("per_trial", True, note="guess: the trial table gives each trial's onset and offset")]
@@ -164,7 +178,7 @@ def _source_lines(s: Survey, folder: Path) -> list[str]:
                 lines.append(_line(role, s.trial_columns[role].value, s.trial_columns[role]))
         if s.events:
             shown = ", ".join(f"{k} = {_toml(v)}" for k, v in s.events.items())
-            lines.append(f"# events = {{ {shown} }}   # other times in the trial table, to align to if you wish")
+            lines.append(f"# events = {{ {plain(shown)} }}   # other times in the trial table, to align to if you wish")
     table = s.spikes.unit_table
     if table is not None:
         unit_file = table.path.name if s.spikes.format == "sample_arrays" else _relative(table.path, folder)
@@ -227,8 +241,7 @@ def write_draft(spikes: Path, trials: Path | None, target: Path, force: bool = F
     if target.suffix != ".toml":
         raise UserError(Problem("a spec file name ends in .toml", file=str(target)))
     text, survey = draft(spikes, trials, target)
-    target.parent.mkdir(parents=True, exist_ok=True)
-    target.write_text(text, encoding="utf-8")
+    write_text(target, text)
     lines = [("out", f"wrote {target}: {len(survey.units)} units, {len(survey.levels)} levels; every guess is a "
                      "'# guess:' comment")]
     lines += [("out", f"question: {question}") for question in survey.questions]

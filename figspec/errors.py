@@ -45,6 +45,31 @@ def toml_text(value: Any) -> str:
     return str(value)
 
 
+GOT_CHARS = 300        # the most of a found value an error line shows: an excerpt, never a whole file's line
+
+
+def one_line(text: str) -> str:
+    """``text`` with every line break and other control character written as ``\\n``/``\\uXXXX``,
+    so one problem is one line of output whatever the data held."""
+    out = []
+    for c in str(text):
+        if c == "\n":
+            out.append("\\n")
+        elif c == "\t":
+            out.append(" ")
+        elif ord(c) < 32 or 0x7f <= ord(c) < 0xa0 or c in "\u2028\u2029":
+            out.append(f"\\u{ord(c):04x}")
+        else:
+            out.append(c)
+    return "".join(out)
+
+
+def excerpt(text: str, limit: int) -> str:
+    """At most ``limit`` characters of ``text`` on one line, cut with "..." when longer."""
+    text = one_line(text)
+    return text if len(text) <= limit else text[:limit - 3] + "..."
+
+
 @dataclass(frozen=True)
 class Problem:
     """One thing wrong with a spec or its data.
@@ -71,8 +96,8 @@ class Problem:
         key = format_key_path(self.loc)
         text = head + (f"{key}: " if key else "") + self.message
         if self.got is not None:
-            text += f" (got {self.got})"
-        return text
+            text += f" (got {excerpt(self.got, GOT_CHARS)})"
+        return one_line(text)
 
     def located(self, file: str, line: int | None) -> "Problem":
         return replace(self, file=self.file or file, line=self.line or line)

@@ -17,6 +17,8 @@ from figspec.build import BuildOptions, render_one
 from figspec.optional import require
 from figspec.output.names import output_stem
 from figspec.output.review_page import write_index
+from figspec.output.output_set import output_folder
+from figspec.output.safe_write import write_text
 
 
 class Preview:
@@ -30,7 +32,7 @@ class Preview:
 
     def render(self) -> bool:
         """Render the spec now; print its problems; refresh the index page and preview.js."""
-        self.outdir.mkdir(parents=True, exist_ok=True)
+        output_folder(self.outdir)
         result = render_one(str(self.spec), self.options, "watched file changed" if self.count else "")
         for line in result.errors + result.findings + [f"{self.spec}: warning: {w}" for w in result.warnings]:
             self.say(line)
@@ -45,7 +47,7 @@ class Preview:
         self.count += 1
         write_index(self.outdir, f"Live preview of {self.spec.name}", live=True,
                     problems={output_stem(self.spec): problem} if problem else None)
-        (self.outdir / "preview.js").write_text(f"window.figspecPreview = {self.count};\n", encoding="utf-8")
+        write_text(self.outdir / "preview.js", f"window.figspecPreview = {self.count};\n", root=self.outdir)
         return problem is None
 
     def watch(self, stop: threading.Event | None = None, debounce_ms: int = 200) -> None:

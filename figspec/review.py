@@ -7,8 +7,9 @@ Exit codes used by the CLI: 0 all the same, 3 a figure differs (2 stays for bad 
 from __future__ import annotations
 
 import json
-import shutil
+import os
 import subprocess
+import tempfile
 from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import Sequence
@@ -20,6 +21,8 @@ from figspec.output.names import output_stem
 from figspec.errors import Problem, UserError
 from figspec.output.compare import ImageResult, rms_difference, side_by_side, table_diffs
 from figspec.output.files import write_all
+from figspec.output.output_set import output_folder, output_problem
+from figspec.output.safe_write import write_bytes, write_text
 from figspec.output.report import sha256
 from figspec.output.review_page import FigureReview, review_page
 from figspec.spec.diff import key_changes
@@ -59,7 +62,7 @@ def compare(specs: Sequence[Path], folder: Path, tolerance: float, results: Path
     ``<stem>.new.png``, ``<stem>.baseline.png`` and (on a difference) ``<stem>.difference.png``
     to ``results``, plus ``summary.txt``."""
     folder, results = Path(folder), Path(results)
-    results.mkdir(parents=True, exist_ok=True)
+    output_folder(results)
     for pattern in ("*.new.png", "*.baseline.png", "*.difference.png", "summary.txt", PAGE):   # a run's own files
         for stale in results.glob(pattern):
             stale.unlink()
@@ -79,7 +82,7 @@ def compare(specs: Sequence[Path], folder: Path, tolerance: float, results: Path
             reviews.append(FigureReview(stem, "", f"{spec} now", None, files["png"], None, False,
                                         result.image.message, data_files=data, compare_keys=False))
             continue
-        shutil.copyfile(expected, results / f"{stem}.baseline.png")
+        write_bytes(results / f"{stem}.baseline.png", expected.read_bytes(), root=results)
         same = {fmt: stored.get(stem, {}).get(fmt) == sha256(data) for fmt, data in files.items()}
         difference = results / f"{stem}.difference.png"
         result = Comparison(rms_difference(expected, actual, tolerance, difference), same)
@@ -90,7 +93,7 @@ def compare(specs: Sequence[Path], folder: Path, tolerance: float, results: Path
                                     data_files=data, compare_keys=False))
     lines = [f"{c.image.name}: {'unchanged' if c.passed else 'CHANGED'} ({c.image.message}); identical bytes: "
              + _bytes_note(c.identical_bytes) for c in out]
-    (results / "summary.txt").write_text("\n".join(lines) + "\n")
+    write_text(results / "summary.txt", "\n".join(lines) + "\n", root=results)
     changed = sum(not c.passed for c in out)
     page = review_page("figspec compare", f"{len(out)} figures against the baselines in {folder} (tolerance RMS "
                        f"{tolerance:g} on 0-255): {changed} changed, {len(out) - changed} unchanged", reviews)
@@ -114,6 +117,9 @@ def _data_files(resolved) -> list[str]:
 
 
 def _spec_at_revision(spec: Path, revision: str) -> str:
+    if not revision or revision.startswith("-") or any(c.isspace() or ord(c) < 32 for c in revision):
+        raise UserError(Problem("a revision is a commit, branch or tag name (it cannot start with '-' or hold "
+                                f"spaces): git would read {revision!r} as an option", file=str(spec)))
     root = subprocess.run(["git", "rev-parse", "--show-toplevel"], cwd=spec.parent, capture_output=True, text=True)
     if root.returncode != 0:
         raise UserError(Problem("not inside a git repository, so --rev cannot be used", file=str(spec)))
@@ -146,8 +152,15 @@ def diff(new: Path, old: Path | None, revision: str | None, outdir: Path) -> lis
     else:
         old_text, told = _spec_at_revision(new, revision), f"{new} at {revision}"
     tag = "old" if old is not None else f"at-{revision.replace('/', '_')}"
-    hidden = new.parent / f".{output_stem(new)}.{tag}.toml"     # beside the new one: the same relative paths
-    hidden.write_text(old_text, encoding="utf-8")
+    # beside the new one (the same relative paths), under a new name of its own: a file or link
+    # planted at a predictable name is never opened, let alone written through
+    try:
+        fd, name = tempfile.mkstemp(dir=new.parent, prefix=f".{output_stem(new)}.{tag}.", suffix=".toml")
+        with os.fdopen(fd, "w", encoding="utf-8") as handle:
+            handle.write(old_text)
+    except OSError as err:
+        raise output_problem(err, new.parent) from None
+    hidden = Path(name)
     try:
         old_resolved = pipeline.check(hidden)
         old_files, old_tables = pipeline.render_in_memory(old_resolved)

@@ -134,3 +134,48 @@ def damaged_text(draw) -> str:
 
 
 specs = st.one_of(mutated_specs(), damaged_text())
+
+
+# ---- data files: the corpus' small spike and trial tables with bytes and fields damaged --------
+
+SPIKES = (CORPUS / "data" / "spikes.csv").read_bytes()
+TRIALS = (CORPUS / "data" / "trials.csv").read_bytes()
+EXTREMES = [b"", b"nan", b"inf", b"-inf", b"1e308", b"-1e308", b"1e-320", b"9223372036854775808", b"-0",
+            b"0x10", b"1,5", b'"', b'""', b"\x00", b"\xff\xfe", b"\r", b"\n", b"u1\nu2", b" u1 ", b"NULL",
+            b"a" * 2000]
+
+
+@st.composite
+def damaged_bytes(draw, data: bytes) -> bytes:
+    """``data`` with one to three changes: bytes flipped, a slice cut, repeated or replaced, a
+    field replaced by an extreme value, or a line duplicated or dropped."""
+    for _ in range(draw(st.integers(1, 3))):
+        how = draw(st.sampled_from(["flip", "cut", "repeat", "insert", "field", "line_twice", "line_gone"]))
+        start = draw(st.integers(0, max(0, len(data) - 1)))
+        stop = draw(st.integers(start, min(len(data), start + 60)))
+        if how == "flip" and data:
+            data = data[:start] + bytes([data[start] ^ draw(st.integers(1, 255))]) + data[start + 1:]
+        elif how == "cut":
+            data = data[:start] + data[stop:]
+        elif how == "repeat":
+            data = data[:stop] + data[start:stop] * draw(st.integers(1, 50)) + data[stop:]
+        elif how == "insert":
+            data = data[:start] + draw(st.binary(max_size=12)) + data[start:]
+        elif how == "field":
+            fields = data.split(b",")
+            if fields:
+                fields[draw(st.integers(0, len(fields) - 1))] = draw(st.sampled_from(EXTREMES))
+                data = b",".join(fields)
+        else:
+            lines = data.split(b"\n")
+            i = draw(st.integers(0, len(lines) - 1))
+            lines = lines[:i] + ([lines[i]] * 2 if how == "line_twice" else []) + lines[i + 1:]
+            data = b"\n".join(lines)
+    return data
+
+
+DATA_SPEC = BASE.replace(f'"{CORPUS / "data"}/spikes.csv"', '"spikes.csv"').replace(
+    f'"{CORPUS / "data"}/trials.csv"', '"trials.csv"')
+
+data_cases = st.tuples(st.one_of(damaged_bytes(SPIKES), st.just(SPIKES)),
+                       st.one_of(damaged_bytes(TRIALS), st.just(TRIALS)))

@@ -5,6 +5,9 @@ of examples here; bench/fuzz_check.py runs the same strategies for minutes."""
 from __future__ import annotations
 
 import warnings
+from pathlib import Path
+
+import pytest
 
 from hypothesis import HealthCheck, given, settings
 
@@ -31,3 +34,13 @@ def check_text(text: str, folder) -> None:
 @given(text=specs)
 def test_check_never_fails_with_an_internal_error(text, tmp_path):
     check_text(text, tmp_path)
+
+
+FOUND = sorted((Path(__file__).resolve().parent / "bad_inputs" / "found").glob("*/fuzzed.toml"))
+
+
+@pytest.mark.parametrize("spec", FOUND or [pytest.param(None, marks=pytest.mark.skip(
+    reason="bench/fuzz_check.py has kept no finding (tests/bad_inputs/found/ holds none)"))])
+def test_every_kept_fuzz_finding_ends_cleanly(spec, cli, tmp_path):
+    result = cli("render", spec, "-o", tmp_path / "out")
+    assert result.returncode in (0, 2) and "Traceback" not in result.stderr, result.stderr

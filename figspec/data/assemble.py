@@ -112,6 +112,7 @@ def assemble(spikes, trials, layout: Layout) -> Recording:
     check_inside_extent(ticks, table, pair_trial, pair, layout, pair_unit, units)
     check_durations(table, layout)
     order = sort_order(pair, ticks)
+    warn_duplicates(pair[order], ticks[order], layout)
     offsets = np.zeros(pair_unit.size + 1, dtype=np.int64)
     np.cumsum(np.bincount(pair, minlength=pair_unit.size), out=offsets[1:])
     shown_cols = ["trial", "sequence", "level", "stim_start_ms", "stim_stop_ms", "extent_lo_ms", "extent_hi_ms"]
@@ -120,6 +121,30 @@ def assemble(spikes, trials, layout: Layout) -> Recording:
                     offsets=offsets, ticks=ticks[order], ticks_per_ms=layout.ticks_per_ms,
                     unread_units=tuple(sorted(set(unread.tolist()) - set(units), key=natural_key)))
     return rec.keep_trials(keep, removed)
+
+
+DUPLICATES_SAID = 10      # fewer repeats than this (and than 1 % of the spikes) are coincidences of a
+DUPLICATE_SHARE = 0.01    # multi-unit cluster at sample resolution, or of simulated data, not a fault
+
+
+def warn_duplicates(pair: np.ndarray, ticks: np.ndarray, layout: Layout) -> None:
+    """Warn about spikes listed twice: one unit, one trial, the very same time (to the tick). A
+    neuron's refractory period rules out two spikes at one instant, so such rows are an export
+    or a concatenation gone wrong; they are counted and said, and kept (dropping rows silently
+    would hide the fault that made them, and a sorter's doublets would still show in rasters),
+    so rates include them until the data are mended. A few repeats (fewer than 10, or than 1 % of
+    the spikes) are left unsaid: a multi-unit cluster read at sample resolution has such
+    coincidences."""
+    same = (pair[1:] == pair[:-1]) & (ticks[1:] == ticks[:-1])
+    n = int(np.count_nonzero(same))
+    if n >= max(DUPLICATES_SAID, DUPLICATE_SHARE * ticks.size):
+        import warnings
+
+        from figspec.errors import FigspecWarning
+
+        warnings.warn(f"{layout.where}: {n} spike rows repeat another row exactly (same unit, trial and time): rates "
+                      "and rasters count them twice; is the spike table concatenated twice?", FigspecWarning,
+                      stacklevel=2)
 
 
 def unit_codes(values, layout: Layout) -> tuple[np.ndarray, np.ndarray, np.ndarray]:

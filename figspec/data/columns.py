@@ -9,7 +9,7 @@ trial key), ``time``, ``level``, ``onset``, ``offset``, ``start``, ``stop``, ``e
 from __future__ import annotations
 
 from figspec.data.table import Table
-from figspec.errors import DataError, Loc, Problem
+from figspec.errors import DataError, Loc, Problem, excerpt
 from figspec.spec.sources import SourceBase, TableSource
 
 Plan = dict[str, tuple[str, Loc]]   # canonical name -> (column in the file, key path in the spec)
@@ -61,7 +61,10 @@ def key_paths(src: SourceBase, loc: Loc, plans: tuple[Plan, Plan | None]) -> dic
 
 def missing_columns(header: list[str], plan: Plan, where: str) -> list[Problem]:
     """One problem per planned column the file does not have."""
-    shown = ", ".join(header[:12]) + (" ..." if len(header) > 12 else "")
+    # a short excerpt of the header: a file named by mistake (a credentials file) is not printed;
+    # real column names are short, so a long field is described, not shown
+    shown = excerpt(", ".join(excerpt(h, 32) if len(h) <= 32 else f"<a field of {len(h)} characters>"
+                              for h in header[:12]) + (" ..." if len(header) > 12 else ""), 200)
     return [Problem(f"column {column!r} not found in {where}", loc, f"columns: {shown}")
             for column, loc in plan.values() if column not in header]
 

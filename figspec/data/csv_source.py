@@ -101,7 +101,11 @@ def _header(path: Path, delimiter: str, file_loc: Loc) -> list[str]:
     if b"\x00" in head:
         raise DataError(Problem(f"{path} holds NUL bytes: is it a text file in UTF-8 (or another format, e.g. "
                                 "Parquet: set format)?", file_loc))
-    return next(csv.reader([text.rstrip("\r")], delimiter=delimiter))
+    try:
+        return next(csv.reader([text.rstrip("\r")], delimiter=delimiter))
+    except csv.Error:                              # a lone carriage return inside the header row
+        raise DataError(Problem(f"{path}: the header row holds a stray line-break character (\\r) the CSV reader "
+                                "cannot read; is the file's end of line mixed?", file_loc)) from None
 
 
 def _delimiter_problem(header: list[str], delimiter: str, path: Path, loc: Loc) -> Problem | None:
@@ -111,8 +115,9 @@ def _delimiter_problem(header: list[str], delimiter: str, path: Path, loc: Loc) 
     for other, name in DELIMITER_NAMES.items():
         if other != delimiter and other != " " and other in header[0]:
             shown = "\\t" if other == "\t" else other
+            found = f"header {header[0]!r}" if len(header[0]) <= 32 else f"a header field of {len(header[0])} characters"
             return Problem(f"{path} looks {name}-separated, but is read as {DELIMITER_NAMES[delimiter]}-separated: "
-                           f"set delimiter = \"{shown}\"", loc + ("delimiter",), f"header {header[0][:40]!r}")
+                           f"set delimiter = \"{shown}\"", loc + ("delimiter",), found)
     return None
 
 

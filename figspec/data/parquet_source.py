@@ -65,11 +65,26 @@ def read_table(path: Path, wanted: Plan, file_loc: Loc, src_loc: Loc, units: set
         raise DataError(Problem(f"cannot read {path} as Parquet ({type(err).__name__}: "
                                 f"{str(err).strip().splitlines()[0][:160] if str(err).strip() else 'unreadable'})",
                                 file_loc)) from None
+    if typed is not None and not whole and _missing_units(table, unit_column, typed):
+        # a name stored with surrounding spaces (" u1 ") escapes the pushed-down filter: read every
+        # row group's units, so the names are matched as every format matches them (stripped)
+        try:
+            table = scanner(path, columns, unit_column, None).to_table()
+        except (pa.ArrowException, OSError) as err:
+            raise DataError(Problem(f"cannot read {path} as Parquet ({type(err).__name__})", file_loc)) from None
     if table.num_rows == 0 and typed is None:
         raise DataError(Problem(f"{path} has no rows", file_loc))
     arrays = {column: _numpy(pa, table.column(column), column == unit_column) for column in columns}
     out = Table({canonical: arrays[column] for canonical, (column, _) in wanted.items()})
     return out
+
+
+def _missing_units(table, unit_column: str, wanted: list) -> bool:
+    """Whether a wanted unit has no row among those read."""
+    import pyarrow.compute as pc
+
+    found = {str(v).strip() for v in pc.unique(table.column(unit_column)).to_pylist() if v is not None}
+    return any(str(u).strip() not in found for u in wanted)
 
 
 def _numpy(pa, column, is_unit: bool):

@@ -29,7 +29,7 @@ def finite_numbers(values: np.ndarray, what: str, loc: Loc, where: str) -> np.nd
     if bad.any():
         first = np.asarray(values)[np.argmax(bad)]
         raise DataError(Problem(f"{what} must be finite numbers in every row of {where}; {int(bad.sum())} rows "
-                                "are not", loc, "an empty field" if is_missing(first) else shown(first)))
+                                "are not", loc, "an empty field or NaN" if is_missing(first) else shown(first)))
     return out
 
 

@@ -14,6 +14,11 @@ from figspec.data.ticks import finite_numbers, to_ticks
 from figspec.errors import DataError, Problem
 
 
+def shown_key(key) -> str:
+    """A trial key as a message shows it."""
+    return str(key.item() if hasattr(key, "item") else key)
+
+
 def trial_table(trials: Table, keys: list[str], layout: Layout) -> tuple[Table, dict]:
     """The trial table in presentation order with its display columns, and its event times in
     ticks (``align``, and ``start``/``stop`` on the data's clock when given)."""
@@ -37,7 +42,14 @@ def trial_table(trials: Table, keys: list[str], layout: Layout) -> tuple[Table, 
     added = {"stim_start_ms": (onset - align) / per_ms}
     if "offset" in ticks:
         if np.any(ticks["offset"] <= onset):
-            raise DataError(Problem("every stimulus offset must come after its onset", locs.get("offset", ()), where))
+            bad = ticks["offset"] <= onset
+            first = int(np.argmax(bad))
+            key = trials["trial"][first] if "trial" in trials else first + 1
+            raise DataError(Problem(f"every stimulus offset must come after its onset; "
+                                    f"{'1 trial does' if bad.sum() == 1 else f'{int(bad.sum())} trials do'} not, "
+                                    f"first trial {shown_key(key)} (onset {(onset[first] - align[first]) / per_ms:g} "
+                                    f"ms, offset {(ticks['offset'][first] - align[first]) / per_ms:g} ms from the "
+                                    "alignment event)", locs.get("offset", ()), where))
         added["stim_stop_ms"] = (ticks["offset"] - align) / per_ms
     else:
         added["stim_stop_ms"] = np.full(len(trials), np.nan)

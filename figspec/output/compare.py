@@ -57,7 +57,9 @@ def rms_difference(expected: Path, actual: Path, tolerance: float,
     if value <= tolerance:
         return ImageResult(name, value, True, f"RMS {value:.2f} <= tolerance {tolerance:g}")
     if difference is not None:
-        Path(difference).write_bytes(difference_image(a, b))
+        from figspec.output.safe_write import write_bytes
+
+        write_bytes(difference, difference_image(a, b))
     return ImageResult(name, value, False, f"RMS {value:.2f} > tolerance {tolerance:g}")
 
 

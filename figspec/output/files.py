@@ -68,19 +68,25 @@ def write_all(payload: dict[Path, bytes]) -> list[Path]:
     temporary file beside its target first and is renamed into place when all are written, so
     a failure leaves the previous files as they were. New files get the ordinary permissions
     (0666 less the umask); a file-system failure is an :class:`OutputError`."""
-    from figspec.output.output_set import output_problem
+    from figspec.output.output_set import OutputError, output_problem, refuse_links
 
     staged: list[tuple[Path, Path]] = []
     try:
         for path, data in payload.items():
+            refuse_links(path, path.parent)
             path.parent.mkdir(parents=True, exist_ok=True)
             tmp = path.parent / f".{path.name}.{os.getpid()}.{len(staged)}.partial"
-            fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_TRUNC, 0o666)
+            # O_EXCL: a name planted in advance (a link) is never opened
+            fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL | getattr(os, "O_NOFOLLOW", 0), 0o666)
             staged.append((tmp, path))
             with os.fdopen(fd, "wb") as handle:
                 handle.write(data)
         for tmp, path in staged:
             os.replace(tmp, path)
+    except OutputError:
+        for tmp, _ in staged:
+            tmp.unlink(missing_ok=True)
+        raise
     except OSError as err:
         for tmp, _ in staged:
             tmp.unlink(missing_ok=True)

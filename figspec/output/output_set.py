@@ -44,6 +44,11 @@ def output_problem(err: OSError, path: Path) -> OutputError:
     return OutputError(Problem(f"cannot write the outputs: {reason}", file=str(path)))
 
 
+def output_folder(path: Path) -> None:
+    """Make the output folder (and its parents), or say in one user error why it cannot be."""
+    _folder(path)
+
+
 def _folder(path: Path) -> None:
     try:
         path.mkdir(parents=True, exist_ok=True)
@@ -55,16 +60,54 @@ def _folder(path: Path) -> None:
         raise OutputError(Problem("cannot write the outputs: this is a file, not a folder", file=str(path)))
 
 
+def refuse_links(path: Path, root: Path) -> None:
+    """An error when ``path``, or any folder between ``root`` (which the user named, and may be a
+    link) and ``path``, is a symbolic link: figspec would write where it points."""
+    path, root = Path(path), Path(root)
+    try:
+        parts = path.relative_to(root).parts
+    except ValueError:
+        parts = (path.name,)
+        root = path.parent
+    here = root
+    for part in parts:
+        here = here / part
+        if here.is_symlink():
+            raise OutputError(Problem("a symbolic link stands where figspec writes its own file; figspec never "
+                                      "writes through a link: remove it or choose another output folder",
+                                      file=str(here)))
+
+
+def listed_outputs(outdir: Path, stem: str) -> set[str]:
+    """The outputs the previous render's manifest lists (paths relative to ``outdir``, inside the
+    spec's own names): the only files a re-render may remove. A user's own file beside them, or
+    inside ``<stem>_data/``, is never listed and so never touched."""
+    manifest = outdir / f"{stem}_data" / "manifest.json"
+    if manifest.is_symlink() or not manifest.is_file():
+        return set()
+    try:
+        listed = {str(item["path"]) for item in json.loads(manifest.read_text(encoding="utf-8"))["outputs"]}
+    except (ValueError, KeyError, TypeError, OSError, UnicodeDecodeError):
+        return set()
+    own = re.compile(re.escape(stem) + r"(\.[a-z]+|_data/[^/]+)$")
+    return {name for name in listed if own.fullmatch(name) and ".." not in name.split("/")} | \
+        {f"{stem}_data/manifest.json"}
+
+
 def write_set(outdir: Path, stem: str, payload: dict[Path, bytes], owned: tuple[str, ...] = ()) -> list[Path]:
-    """Write ``payload`` (absolute paths inside ``outdir`` -> bytes) as one set. Files matching
-    the ``owned`` glob patterns (relative to ``outdir``) that the set does not hold any more are
-    stale outputs of the same spec and are removed with the switch. The last path of ``payload``
-    is moved last (the manifest)."""
+    """Write ``payload`` (absolute paths inside ``outdir`` -> bytes) as one set. Files the
+    previous render's manifest lists (and ``owned`` glob patterns, relative to ``outdir``, allow)
+    that the set does not hold any more are stale outputs of the same spec and are removed with
+    the switch; nothing else is. A symbolic link where a file of the set goes (or its
+    ``<stem>_data`` folder) is an error: figspec never writes or deletes through one. The last
+    path of ``payload`` is moved last (the manifest)."""
     outdir = Path(outdir)
     _folder(outdir)
     recover(outdir)
     staging = outdir / f"{STAGING_PREFIX}{stem}.{_host()}.{os.getpid()}.staging"
     relative = [p.relative_to(outdir) for p in payload]
+    for rel in relative:
+        refuse_links(outdir / rel, outdir)
     try:
         shutil.rmtree(staging, ignore_errors=True)
         staging.mkdir()
@@ -73,8 +116,9 @@ def write_set(outdir: Path, stem: str, payload: dict[Path, bytes], owned: tuple[
             target.parent.mkdir(parents=True, exist_ok=True)
             with open(target, "wb") as handle:            # mode 0666 less the umask, as any new file
                 handle.write(data)
-        stale = sorted({p.relative_to(outdir).as_posix() for pattern in owned for p in outdir.glob(pattern)
-                        if p.is_file()} - {r.as_posix() for r in relative})
+        allowed = {p.relative_to(outdir).as_posix() for pattern in owned for p in outdir.glob(pattern)
+                   if p.is_file() and not p.is_symlink()}
+        stale = sorted((listed_outputs(outdir, stem) & allowed) - {r.as_posix() for r in relative})
         listing = staging / f"{COMMITTED}.writing"
         listing.write_text(json.dumps({"move": [r.as_posix() for r in relative], "remove": stale}))
         os.replace(listing, staging / COMMITTED)          # from here on the new set wins
@@ -86,6 +130,8 @@ def write_set(outdir: Path, stem: str, payload: dict[Path, bytes], owned: tuple[
         raise
     try:
         _finish(staging, outdir)
+    except OutputError:
+        raise
     except OSError as err:
         raise output_problem(err, outdir) from None
     return list(payload)
@@ -96,10 +142,12 @@ def _finish(staging: Path, outdir: Path) -> None:
     remove the stale ones, then the folder."""
     listing = json.loads((staging / COMMITTED).read_text())
     for name in listing["remove"]:
-        (outdir / name).unlink(missing_ok=True)
+        if not (outdir / name).parent.is_symlink():
+            (outdir / name).unlink(missing_ok=True)
     for name in listing["move"]:
         source = staging / name
         if source.exists():
+            refuse_links(outdir / name, outdir)
             (outdir / name).parent.mkdir(parents=True, exist_ok=True)
             os.replace(source, outdir / name)
     shutil.rmtree(staging, ignore_errors=True)

@@ -12,8 +12,8 @@ from __future__ import annotations
 
 import base64
 import html
+from urllib.parse import quote
 import json
-import os
 import re
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -195,12 +195,25 @@ RELOAD_SCRIPT = """<script>
 """
 
 
+def local_link(path: str) -> str:
+    """A file of the output folder as a link that can only be that file: each part of the path
+    percent-encoded (RFC 3986), so ``javascript:``, ``http:``, ``#``, ``?`` and ``%`` in a name
+    stay part of the name, and prefixed ``./`` so the link is relative; empty for a path that
+    would leave the folder (absolute, or with ``..``)."""
+    text = str(path).replace("\\", "/")
+    parts = text.split("/")
+    if text.startswith("/") or ".." in parts or not text:
+        return ""
+    return "./" + "/".join(quote(part, safe="") for part in parts)
+
+
 def index_page(title: str, entries: list[IndexEntry], live: bool = False) -> str:
     """The index page of an output folder: every figure, its legend and links to its files."""
     body = [f"<h1>{_e(title)}</h1>",
             f"<p class=\"meta\">{len(entries)} figure{'' if len(entries) == 1 else 's'}"
             + (" &middot; live preview: this page reloads when a figure changes" if live else "") + "</p>"]
-    body.append("<ul>" + "".join(f"<li><a href=\"#{_e(e.stem)}\">{_e(e.stem)}</a></li>" for e in entries) + "</ul>")
+    body.append("<ul>" + "".join(f"<li><a href=\"#{_e(quote(e.stem, safe=''))}\">{_e(e.stem)}</a></li>"
+                                 for e in entries) + "</ul>")
     for e in entries:
         body += [f"<section class=\"figure-card\" id=\"{_e(e.stem)}\">", f"<h2>{_e(e.stem)}</h2>"]
         if e.spec:
@@ -208,11 +221,13 @@ def index_page(title: str, entries: list[IndexEntry], live: bool = False) -> str
         if e.problem:
             body.append(f"<pre class=\"verdict changed\">{_e(e.problem)}</pre>"
                         "<p>The figure below is the last one that rendered.</p>")
-        if e.image:
-            body.append(f"<figure><img src=\"{_e(e.image)}\" alt=\"{_e(e.stem)}\"></figure>")
+        if e.image and local_link(e.image):
+            body.append(f"<figure><img src=\"{_e(local_link(e.image))}\" alt=\"{_e(e.stem)}\"></figure>")
         body.append(legend_html(e.legend))
-        links = " &middot; ".join(f"<a href=\"{_e(p)}\">{_e(Path(p).name)}</a>" for p in e.files)
-        tables = " &middot; ".join(f"<a href=\"{_e(p)}\">{_e(Path(p).name)}</a>" for p in e.tables)
+        links = " &middot; ".join(f"<a href=\"{_e(local_link(p))}\">{_e(Path(p).name)}</a>" for p in e.files
+                                  if local_link(p))
+        tables = " &middot; ".join(f"<a href=\"{_e(local_link(p))}\">{_e(Path(p).name)}</a>" for p in e.tables
+                                   if local_link(p))
         body.append(f"<p>Files: {links}</p><p>Source data: {tables or 'none'}</p></section>")
     return _page(title, body, RELOAD_SCRIPT if live else "")
 
@@ -245,8 +260,6 @@ def write_index(folder: Path, title: str | None = None, live: bool = False,
     reads half a page)."""
     folder = Path(folder)
     text = index_page(title or "Figures", index_entries(folder, problems), live)
-    target = folder / "index.html"
-    temporary = folder / f".index.html.{os.getpid()}.tmp"
-    temporary.write_text(text, encoding="utf-8")
-    os.replace(temporary, target)
-    return target
+    from figspec.output.safe_write import write_text
+
+    return write_text(folder / "index.html", text, root=folder)

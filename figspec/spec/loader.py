@@ -56,12 +56,39 @@ def read_toml(path: Path) -> tuple[str, dict[str, Any]]:
         raise SpecError(Problem("file not found", file=str(path))) from None
     except (OSError, UnicodeDecodeError) as err:
         raise SpecError(Problem(f"cannot read the file: {err}", file=str(path))) from err
+    if len(text) > MAX_SPEC_CHARS:
+        raise SpecError(Problem(f"a spec file holds at most {MAX_SPEC_CHARS:,} characters; this one has "
+                                f"{len(text):,}", file=str(path)))
     try:
-        return text, tomli.loads(text)
+        data = tomli.loads(text)
     except tomli.TOMLDecodeError as err:
         message = str(getattr(err, "msg", err)).split(" (at line")[0]
         line = getattr(err, "lineno", None)
         raise SpecError(Problem(f"not valid TOML: {message}", file=str(path), line=line)) from None
+    except RecursionError:                         # tomli's own limit on nesting and dotted-key parts
+        raise SpecError(Problem(f"tables, arrays or dotted keys nested too deeply for a spec (at most "
+                                f"{MAX_DEPTH} levels)", file=str(path))) from None
+    if depth(data) > MAX_DEPTH:
+        raise SpecError(Problem(f"tables, arrays or dotted keys nested too deeply for a spec (at most "
+                                f"{MAX_DEPTH} levels)", file=str(path)))
+    return text, data
+
+
+MAX_SPEC_CHARS = 1_000_000      # a spec is a page or two; a larger file is not one
+MAX_DEPTH = 16                  # a spec's deepest key is about five levels down
+
+
+def depth(value: Any) -> int:
+    """How deeply tables and arrays nest in ``value`` (walked without recursion)."""
+    deepest, stack = 0, [(value, 0)]
+    while stack:
+        item, level = stack.pop()
+        deepest = max(deepest, level)
+        if level > MAX_DEPTH:
+            break
+        children = item.values() if isinstance(item, dict) else item if isinstance(item, list) else ()
+        stack.extend((child, level + 1) for child in children if isinstance(child, (dict, list)))
+    return deepest
 
 
 def strict_validate(model: type[M], data: dict[str, Any]) -> M:

@@ -31,10 +31,19 @@ class FigureSpec(Frozen):
     title: Text = ""
     width_mm: Millimetres | None = None
     height_mm: Millimetres = 170.0
-    formats: list[Format] = Field(default_factory=lambda: list(ALL_FORMATS), min_length=1)
+    formats: Annotated[list[Format], Field(min_length=1, max_length=len(ALL_FORMATS))] = \
+        Field(default_factory=lambda: list(ALL_FORMATS))
     png_dpi: Annotated[int, Field(ge=72, le=1200)] = 300
     style: str = "default"
     journal: str | None = None
+
+    @field_validator("formats")
+    @classmethod
+    def _once_each(cls, formats: list[str]) -> list[str]:
+        repeated = sorted({f for f in formats if formats.count(f) > 1})
+        if repeated:
+            raise ValueError(f"each format once: {', '.join(repeated)} is listed more than once")
+        return formats
 
 
 class LevelSpec(Frozen):

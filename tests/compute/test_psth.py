@@ -79,6 +79,7 @@ def test_a_trial_with_no_spikes_lowers_the_rate():
 spike_times = st.lists(st.floats(-0.2, 0.3, allow_nan=False), max_size=30)
 
 
+@pytest.mark.filterwarnings("ignore:.*spike rows repeat another row")   # generated trains repeat times
 @settings(max_examples=60, deadline=None)
 @given(st.lists(spike_times, min_size=1, max_size=6), st.sampled_from([1.0, 2.5, 5.0, 10.0]),
        st.randoms(use_true_random=False))

@@ -44,11 +44,14 @@ def test_a_render_replaces_the_whole_set_and_leaves_no_staging(tmp_path):
 
 
 def test_outputs_the_render_no_longer_writes_are_removed(tmp_path):
-    old = _set(tmp_path, b"old") | {tmp_path / "fig.svg": b"svg", tmp_path / "fig_data" / "gone.csv": b"x"}
+    old = {tmp_path / "fig.png": b"png", tmp_path / "fig.svg": b"svg", tmp_path / "fig_data" / "gone.csv": b"x"}
+    old[tmp_path / "fig_data" / "manifest.json"] = _manifest(old, tmp_path)     # a render's manifest lists all
     write_set(tmp_path, "fig", old, OWNED)
     (tmp_path / "other.png").write_bytes(b"another spec's figure")
+    (tmp_path / "fig_data" / "notes.txt").write_bytes(b"the lab's own file, listed by no manifest")
     write_set(tmp_path, "fig", _set(tmp_path, b"new"), OWNED)
-    assert sorted(_contents(tmp_path)) == ["fig.png", "fig_data/manifest.json", "fig_data/rate.csv", "other.png"]
+    assert sorted(_contents(tmp_path)) == ["fig.png", "fig_data/manifest.json", "fig_data/notes.txt",
+                                           "fig_data/rate.csv", "other.png"]
 
 
 def test_a_failure_while_staging_keeps_the_old_set(tmp_path, monkeypatch):

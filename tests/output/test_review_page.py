@@ -77,8 +77,8 @@ def test_the_index_page_links_files_beside_it_and_shows_the_legend(tmp_path):
     entry = IndexEntry("fig2", "fig2.png", ["fig2.png", "fig2.pdf"], ["fig2_data/rate.csv"],
                        "**Unit u1.**\n- *rate*: Firing rate in 5-ms bins", "specs/fig2.toml")
     page = _parse(index_page("Figures", [entry]))
-    assert page.images == [{"src": "fig2.png", "alt": "fig2"}]
-    assert {"fig2.png", "fig2.pdf", "fig2_data/rate.csv", "#fig2"} <= set(page.links)
+    assert page.images == [{"src": "./fig2.png", "alt": "fig2"}]      # relative, percent-encoded (RFC 3986)
+    assert {"./fig2.png", "./fig2.pdf", "./fig2_data/rate.csv", "#fig2"} <= set(page.links)
     assert "script" not in page.tags
     assert "script" in _parse(index_page("Figures", [entry], live=True)).tags
 
@@ -92,7 +92,7 @@ def test_render_writes_an_index_of_the_folder(demo_render):
     out, _ = demo_render
     page = _parse((out / "index.html").read_text())
     shown = {i["src"] for i in page.images}
-    assert {"level_grid.png", "unit_composite.png"} <= shown
+    assert {"./level_grid.png", "./unit_composite.png"} <= shown
     for link in page.links:
         if not link.startswith("#"):
             assert (out / link).is_file(), link
