@@ -22,7 +22,7 @@ os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 from figspec import __version__  # noqa: E402  (after the setting above)
 from figspec.errors import FigspecWarning, Problem, UserError  # noqa: E402
 from figspec.output.names import check_stems  # noqa: E402
-from figspec.spec.models import ALL_FORMATS  # noqa: E402
+from figspec.spec.models import KNOWN_FORMATS as ALL_FORMATS  # noqa: E402
 
 EXIT_OK, EXIT_INTERNAL, EXIT_USER, EXIT_DIFFERS = 0, 1, 2, 3
 

@@ -65,5 +65,9 @@ def draw_scale_bars(axes: list, plan, ctx) -> None:
         right = x1 + 0.02 * (x1 - x0)
         ax.plot([right, right], [y0, y0 + rate_bar], color="black", linewidth=width, clip_on=False,
                 solid_capstyle="butt", gid="rate_bar")
-        ax.text(right, y0 + rate_bar / 2, f" {rate_bar:g} {unit}", ha="left", va="center",
+        # the gap by layout (an offset in points), not by a leading space, which SVG drops
+        from matplotlib.transforms import offset_copy
+
+        gap = offset_copy(ax.transData, fig=ax.figure, x=0.3 * ctx.style.font.tick_pt, y=0.0, units="points")
+        ax.text(right, y0 + rate_bar / 2, f"{rate_bar:g} {unit}", ha="left", va="center", transform=gap,
                 gid="rate_bar_label", fontsize=ctx.style.font.tick_pt)

@@ -22,39 +22,103 @@ if TYPE_CHECKING:
 def figure_bytes(fig: "Figure", fmt: str, dpi: int, software: str, provenance: str = "") -> bytes:
     """Render ``fig`` to bytes with metadata that holds no date, so the bytes are stable, and
     the ``provenance`` line (hashes of spec, data and style) where each format keeps text."""
+    if fmt in ("png", "tiff"):
+        return raster_bytes(fig, fmt, dpi, software, provenance)
     metadata = {
         "svg": {"Date": None, "Creator": software, "Description": provenance},
         "pdf": {"CreationDate": None, "ModDate": None, "Creator": software, "Producer": software,
                 "Subject": provenance},
-        "png": {"Software": software, "Description": provenance},
+        "eps": {"Creator": software},
     }[fmt]
     buffer = io.BytesIO()
     fig.savefig(buffer, format=fmt, dpi=dpi, metadata=metadata)
     data = buffer.getvalue()
+    if fmt == "eps":            # the one date PostScript output carries: left out, so the bytes are stable
+        data = re.sub(rb"%%CreationDate:[^\n]*\n", b"", data, count=1)
     return stable_svg_ids(data) if fmt == "svg" else data
+
+
+def raster_bytes(fig: "Figure", fmt: str, dpi: int, software: str, provenance: str) -> bytes:
+    """PNG or TIFF as journals take them: RGB without an alpha channel (the figure composited on
+    white), at ``dpi``, lossless (PNG's deflate; TIFF with LZW compression), with the software and
+    provenance in the file's text fields and no date."""
+    from PIL import Image, PngImagePlugin
+
+    buffer = io.BytesIO()
+    fig.savefig(buffer, format="png", dpi=dpi)
+    rgba = Image.open(io.BytesIO(buffer.getvalue())).convert("RGBA")
+    white = Image.new("RGBA", rgba.size, (255, 255, 255, 255))
+    rgb = Image.alpha_composite(white, rgba).convert("RGB")
+    out = io.BytesIO()
+    if fmt == "png":
+        info = PngImagePlugin.PngInfo()
+        info.add_text("Software", software)
+        info.add_text("Description", provenance)
+        rgb.save(out, format="PNG", pnginfo=info, dpi=(dpi, dpi))
+    else:
+        rgb.save(out, format="TIFF", compression="tiff_lzw", dpi=(dpi, dpi),
+                 tiffinfo={305: software, 270: provenance})
+    return out.getvalue()
 
 
 def figure_files(fig: "Figure", style: Style, formats: Iterable[str], dpi: int, software: str,
                  provenance: str = "") -> dict[str, bytes]:
     """``{format: bytes}`` of a drawn figure, rendered inside its style's context (tick labels
     and font embedding are settled when the file is written)."""
-    # PNG first: the layout engine runs at every save, so the PNG is the same whichever other
-    # formats are written with it (and a PNG-only render matches the full one)
+    # one layout for every format: the layout engine runs once, at the PNG's resolution, and is
+    # then switched off, so the vector files and the PNG place every artist at the same spot
+    # (a PNG baseline vouches for the SVG and PDF too)
     order = sorted(formats, key=lambda fmt: fmt != "png")
     with styled(style), missing_glyphs():
+        lay_out_once(fig, dpi)
         return {fmt: figure_bytes(fig, fmt, dpi, software, provenance) for fmt in order}
+
+
+def lay_out_once(fig: "Figure", dpi: int) -> None:
+    """Run the figure's layout engine at ``dpi`` and freeze the result (a figure already frozen
+    is left as it is)."""
+    engine = fig.get_layout_engine()
+    if engine is None or type(engine).__name__ == "PlaceHolderLayoutEngine":
+        return
+    own = fig.dpi
+    fig.set_dpi(dpi)
+    try:
+        fig.draw_without_rendering()
+    finally:
+        fig.set_dpi(own)
+    fig.set_layout_engine("none")
 
 
 CLIP_ID = re.compile(rb"\bp[0-9a-f]{10}\b")
 
 
 def stable_svg_ids(svg: bytes) -> bytes:
-    """Number matplotlib's clip-path ids in order of appearance. Some are derived from object
-    ids in memory, which differ between processes and would change the bytes of one figure."""
+    """Number matplotlib's clip-path ids in order of appearance (some are derived from object
+    ids in memory, which differ between processes and would change the bytes of one figure), and
+    make every id unique: an id that repeats (the stimulus mark of every row) keeps its name the
+    first time and gets ``-2``, ``-3`` ... after, in document order, so a vector editor finds each
+    element by an id of its own instead of renaming repeats its own way."""
     mapping: dict[bytes, bytes] = {}
     for found in re.finditer(rb'id="(p[0-9a-f]{10})"', svg):
         mapping.setdefault(found.group(1), b"clip%d" % (len(mapping) + 1))
-    return CLIP_ID.sub(lambda m: mapping.get(m.group(0), m.group(0)), svg)
+    svg = CLIP_ID.sub(lambda m: mapping.get(m.group(0), m.group(0)), svg)
+    seen: dict[bytes, int] = {}
+    taken = set(re.findall(rb' id="([^"]*)"', svg))
+
+    def unique(match: re.Match) -> bytes:
+        name = match.group(1)
+        count = seen.get(name, 0) + 1
+        seen[name] = count
+        if count == 1:
+            return match.group(0)
+        new = b"%s-%d" % (name, count)
+        while new in taken:
+            count += 1
+            new = b"%s-%d" % (name, count)
+        taken.add(new)
+        return b' id="' + new + b'"'
+
+    return re.sub(rb' id="([^"]*)"', unique, svg)
 
 
 def table_bytes(table: pd.DataFrame) -> bytes:

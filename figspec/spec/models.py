@@ -21,8 +21,9 @@ from figspec.spec.panel_base import PanelBase
 from figspec.spec.panels import Panel
 from figspec.spec.sources import Source
 
-Format = Literal["svg", "pdf", "png"]
-ALL_FORMATS: tuple[Format, ...] = ("svg", "pdf", "png")
+Format = Literal["svg", "pdf", "png", "tiff", "eps"]
+ALL_FORMATS: tuple[Format, ...] = ("svg", "pdf", "png")          # written unless the spec says otherwise
+KNOWN_FORMATS: tuple[Format, ...] = ALL_FORMATS + ("tiff", "eps")  # TIFF and EPS on request (journals ask)
 
 
 class FigureSpec(Frozen):
@@ -31,7 +32,7 @@ class FigureSpec(Frozen):
     title: Text = ""
     width_mm: Millimetres | None = None
     height_mm: Millimetres = 170.0
-    formats: Annotated[list[Format], Field(min_length=1, max_length=len(ALL_FORMATS))] = \
+    formats: Annotated[list[Format], Field(min_length=1, max_length=len(KNOWN_FORMATS))] = \
         Field(default_factory=lambda: list(ALL_FORMATS))
     png_dpi: Annotated[int, Field(ge=72, le=1200)] = 300
     style: str = "default"

@@ -107,5 +107,5 @@ def save(resolved: Resolved, tables: Tables, fig: "Figure", outdir: str | Path,
                                                     "removed": removed(resolved),
                                                     "unit_choice": {name: choice.record() for name, choice
                                                                     in unit_choices(resolved).items()}}, build)
-    owned = tuple(f"{glob.escape(stem)}{tail}" for tail in (".svg", ".pdf", ".png", "_data/*"))
+    owned = tuple(f"{glob.escape(stem)}{tail}" for tail in (".svg", ".pdf", ".png", ".tiff", ".eps", "_data/*"))
     return write_set(outdir, stem, payload, owned)

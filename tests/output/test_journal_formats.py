@@ -1,0 +1,69 @@
+"""The files journals and vector editors take: TIFF (RGB, LZW, at the spec's dpi) and EPS for every
+demo spec on request, PNG without an alpha channel, SVG ids unique, and one layout for every
+format (checked on the figure: laying it out again for another format moves nothing).
+
+References: TIFF 6.0 (Adobe 1992: tag 259 compression 5 = LZW, photometric RGB); the PNG
+specification (W3C, colour type 2 = truecolour without alpha); XML 1.0 (an id is unique in a
+document, the SVG 1.1 id attribute being of XML type ID)."""
+
+from __future__ import annotations
+
+import io
+import re
+
+import pytest
+from PIL import Image
+
+from figspec import pipeline
+from figspec.output.files import figure_files
+
+from helpers import ROOT, SPECS
+
+
+def test_every_demo_spec_writes_tiff_and_eps_on_request(tmp_path, cli):
+    result = cli("render", SPECS, "-o", tmp_path / "out", "--format", "tiff,eps", "--force", cwd=ROOT)
+    assert result.returncode in (0, 2), result.stderr
+    rendered = [p.stem for p in (tmp_path / "out").glob("*.tiff")]
+    needs_extra = {"nwb_session"}                 # reads NWB: needs the nwb extra, absent from a plain install
+    expected = {p.stem for p in SPECS.glob("*.toml")}
+    assert expected - needs_extra <= set(rendered)
+    for stem in rendered:
+        with Image.open(tmp_path / "out" / f"{stem}.tiff") as tiff:
+            mode, info = tiff.mode, dict(tiff.info)
+        assert mode == "RGB" and info["compression"] == "tiff_lzw"
+        import tomllib
+
+        asked = tomllib.loads((SPECS / f"{stem}.toml").read_text())["figure"].get("png_dpi", 300)
+        assert round(info["dpi"][0]) == asked
+        eps = (tmp_path / "out" / f"{stem}.eps").read_bytes()
+        assert eps.startswith(b"%!PS-Adobe-3.0 EPSF-3.0") and b"%%BoundingBox:" in eps
+        assert b"%%CreationDate" not in eps                # no date: the bytes are stable
+
+
+@pytest.fixture(scope="module")
+def drawn():
+    resolved = pipeline.check(SPECS / "level_grid.toml")
+    return resolved, pipeline.draw(resolved, pipeline.compute(resolved))
+
+
+def test_png_has_no_alpha_channel(drawn):
+    resolved, fig = drawn
+    png = figure_files(fig, resolved.style, ["png"], 100, "figspec")["png"]
+    assert png[25] == 2                                    # IHDR colour type 2: RGB, no alpha
+    assert Image.open(io.BytesIO(png)).mode == "RGB"
+
+
+def test_svg_ids_are_unique(drawn):
+    resolved, fig = drawn
+    svg = figure_files(fig, resolved.style, ["svg"], 100, "figspec")["svg"].decode()
+    ids = re.findall(r' id="([^"]*)"', svg)
+    assert len(ids) == len(set(ids)) and {"stimulus", "stimulus-2"} <= set(ids)
+    assert "url(#clip1)" in svg                            # references still reach their clip paths
+
+
+def test_one_layout_for_every_format(drawn):
+    resolved, fig = drawn
+    figure_files(fig, resolved.style, ["png"], 300, "figspec")
+    placed = [ax.get_position().bounds for ax in fig.axes]
+    figure_files(fig, resolved.style, ["pdf", "svg", "eps"], 300, "figspec")
+    assert [ax.get_position().bounds for ax in fig.axes] == placed
