@@ -40,6 +40,26 @@ class NotebookResult:
     tables: dict[str, pd.DataFrame]
     figure: "Figure | None" = None
 
+    DISPLAY_DPI = 150          # the inline picture; the files keep the spec's own png_dpi
+    DISPLAY_ROWS = 8
+
+    def _repr_html_(self) -> str:
+        """What a notebook shows for a result: the figure inline (PNG, as the files draw it) and
+        the first rows of every source-data table, each named with its size."""
+        import base64
+        import html
+
+        from figspec.output.files import figure_files
+
+        parts = []
+        if self.figure is not None:
+            png = figure_files(self.figure, self.resolved.style, ["png"], self.DISPLAY_DPI, "figspec")["png"]
+            parts.append(f'<img alt="figure" src="data:image/png;base64,{base64.b64encode(png).decode()}">')
+        for name, table in self.tables.items():
+            parts.append(f"<details><summary>{html.escape(name)}: {len(table):,} rows × {len(table.columns)} "
+                         f"columns</summary>{table.head(self.DISPLAY_ROWS).to_html(index=False)}</details>")
+        return "\n".join(parts)
+
 
 def tables(spec: str | Path, data: dict[str, tuple[pd.DataFrame, pd.DataFrame | None]] | None = None,
            figure: bool = False, folder: str | Path | None = None) -> NotebookResult:
