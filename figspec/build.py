@@ -62,8 +62,9 @@ def build_record(spec_path: Path, formats: Sequence[str] | None, style: str | No
     from figspec.steps.save import input_paths
 
     spec = load_spec(spec_path)
-    paths = [(role, path) for role, path in input_paths(spec, load_style(spec, style).sources) if Path(path).is_file()]
-    return {"inputs": build_inputs(input_files(paths)), "versions": versions(), "code": code_sha256(),
+    own = load_style(spec, style)
+    paths = [(role, path) for role, path in input_paths(spec, own.sources) if Path(path).is_file()]
+    return {"inputs": build_inputs(input_files(paths)), "versions": versions(own.style), "code": code_sha256(),
             "formats": sorted(formats or spec.model.figure.formats)}
 
 

@@ -55,7 +55,9 @@ def test_manifest_lists_inputs_outputs_and_resolved_defaults(two_renders):
     assert inputs["spec"]["sha256"] == sha(DEMO_SPEC)
     assert inputs["data:midbrain:spikes"]["sha256"] == sha(SPECS / "data" / "spikes.csv")
     assert inputs["data:midbrain:trials"]["sha256"] == sha(SPECS / "data" / "trials.csv")
-    assert inputs["style:house"]["path"] == "styles/house.toml"           # the lab's, which extends ...
+    assert inputs["spec"]["path"] == "level_grid.toml"                  # relative to the spec's folder,
+    assert inputs["data:midbrain:spikes"]["path"] == "data/spikes.csv"   # wherever the render ran
+    assert inputs["style:house"]["path"] == "../styles/house.toml"       # the lab's, which extends ...
     assert inputs["style:default"]["path"] == "figspec:styles/default.toml"   # ... figspec's own
     assert inputs["style:default"]["sha256"] == sha(BUILTIN_STYLES / "default.toml")
     outputs = {o["path"]: o["sha256"] for o in manifest["outputs"]}

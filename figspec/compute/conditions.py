@@ -27,8 +27,8 @@ from figspec.optional import deferred
 
 pd = deferred("pandas")          # imported on first use: checking a spec needs no pandas
 
-TEST_COLUMNS = ["unit", "level", "comparison", "test", "statistic_name", "statistic", "n", "n_each", "n_of", "p",
-                "p_corrected", "correction", "effect_name", "effect_size", "effect_low", "effect_high", "confidence"]
+TEST_COLUMNS = ["unit", "level", "comparison", "test", "statistic_name", "statistic", "n", "per_condition", "counted",
+                "p", "p_corrected", "correction", "effect_name", "effect_size", "effect_low", "effect_high", "confidence"]
 FEWEST_PAIRS = 6           # a two-sided signed-rank test of 5 pairs or fewer cannot reach p < 0.05 (exact null)
 
 
@@ -153,12 +153,12 @@ def test_rows(panel, tests: pd.DataFrame) -> list[list]:
         about = f"{r.comparison}; {r.test}"
         rows += [["test", panel.name, r.unit, level, r.statistic_name, r.statistic, None, None, about],
                  ["test", panel.name, r.unit, level, "n", float(r.n), None, None,
-                  f"{r.comparison}; {r.n_of}" + (f" ({r.n_each} per condition)" if r.n_each else "")],
+                  f"{r.comparison}; {r.counted}" + (f" ({r.per_condition} per condition)" if r.per_condition else "")],
                  ["test", panel.name, r.unit, level, "p", r.p, None, None, about],
                  ["test", panel.name, r.unit, level, "p_corrected", r.p_corrected, None, None,
                   f"{r.comparison}; {r.correction}"],
                  ["test", panel.name, r.unit, level, r.effect_name, r.effect_size, r.effect_low, r.effect_high,
-                  f"{r.comparison}; {r.confidence:.0%} percentile bootstrap over {r.n_of}"]]
+                  f"{r.comparison}; {r.confidence:.0%} percentile bootstrap over {r.counted}"]]
     return rows
 
 

@@ -23,6 +23,7 @@ class Tables:
 
     panels: dict[str, pd.DataFrame | dict[str, pd.DataFrame]]
     stimulus: dict[str, pd.DataFrame]
+    level_unit: str = ""
 
     def for_export(self) -> dict[str, pd.DataFrame]:
         """The tables written as source data: each panel's (``<panel>`` or ``<panel>_<part>``),
@@ -36,7 +37,7 @@ class Tables:
         if self.stimulus:
             frames = list(self.stimulus.values())
             out["stimulus"] = pd.concat(frames, ignore_index=True).drop_duplicates(ignore_index=True)
-        return out
+        return {name: exported(table, self.level_unit) for name, table in out.items()}
 
 
 def compute(resolved: Resolved) -> Tables:
@@ -56,7 +57,7 @@ def compute(resolved: Resolved) -> Tables:
         if kind.layout == "rows":
             stimulus[panel.name] = pd.concat([stimulus_table(rec, u, model.stimulus, panel.levels, sham)
                                               for u in panel.stimulus_units()], ignore_index=True)
-    return Tables(panels=panels, stimulus=stimulus)
+    return Tables(panels=panels, stimulus=stimulus, level_unit=model.levels.unit)
 
 
 def compute_panel(kind, rec, conditions, panel, levels):
@@ -74,3 +75,26 @@ def compute_panel(kind, rec, conditions, panel, levels):
         if tests is not None:
             tables = {**tables, "tests": tests}
     return tables
+
+
+def is_count(column: str) -> bool:
+    """A column of counts (trials, units, spikes): written as whole numbers in every file."""
+    return column in ("n", "count", "rank") or column.startswith("n_")
+
+
+def exported(table: pd.DataFrame, level_unit: str) -> pd.DataFrame:
+    """A table as source data: counts as whole numbers in every file (``30``, never ``30.0``,
+    empty where missing), and beside a ``level`` column the level's unit (``level_unit``), so
+    every column says its unit (times already do: ``_ms``; rates in ``rate_unit``)."""
+    changes = {}
+    for column in table.columns:
+        if is_count(str(column)) and table[column].dtype.kind == "f":
+            values = table[column]
+            if ((values.dropna() % 1) == 0).all():
+                changes[column] = values.astype("Int64")
+    if not changes and ("level" not in table.columns or "level_unit" in table.columns or not level_unit):
+        return table
+    table = table.assign(**changes)
+    if "level" in table.columns and "level_unit" not in table.columns and level_unit:
+        table.insert(list(table.columns).index("level") + 1, "level_unit", level_unit)
+    return table

@@ -37,7 +37,7 @@ def input_paths(spec, style_sources) -> list[tuple[str, Path]]:
 
 def inputs(resolved: Resolved) -> list[dict]:
     """Every file the figure was made from, with hashes."""
-    return input_files(input_paths(resolved.spec, resolved.style_sources))
+    return input_files(input_paths(resolved.spec, resolved.style_sources), resolved.spec.folder)
 
 
 def figures(resolved: Resolved, fig: "Figure", formats: Sequence[str], provenance: str = "") -> dict[str, bytes]:
@@ -100,7 +100,7 @@ def save(resolved: Resolved, tables: Tables, fig: "Figure", outdir: str | Path,
     payload[data_dir / "statistics.csv"] = table_bytes(statistics(resolved, tables))
     payload[data_dir / "legend.md"] = legend(resolved, tables).encode()
     outputs = {p.relative_to(outdir).as_posix(): data for p, data in payload.items()}
-    build = {"inputs": build_inputs(sources), "versions": versions(), "code": code_sha256(),
+    build = {"inputs": build_inputs(sources), "versions": versions(resolved.style), "code": code_sha256(),
              "formats": sorted(formats or model.figure.formats)}
     payload[data_dir / "manifest.json"] = manifest(sources, outputs,
                                                    {**parameters(model, resolved.panels, resolved.style),

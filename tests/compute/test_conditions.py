@@ -127,7 +127,7 @@ def test_level_response_per_condition_and_tests_equal_scipy(tmp_path):
         assert got["p"] == pytest.approx(ref.pvalue, rel=1e-12)
         assert got["effect_size"] == pytest.approx(cliffs_delta(on, off), abs=1e-12)
         assert got["effect_low"] <= got["effect_size"] <= got["effect_high"]
-        assert got["n"] == 30 and got["n_each"] == "15, 15"
+        assert got["n"] == 30 and got["per_condition"] == "15, 15"
         expected_p.append(ref.pvalue)
     np.testing.assert_allclose(tests["p_corrected"].to_numpy(), holm(np.array(expected_p)), rtol=1e-12)
     assert set(tests["comparison"]) == {"silenced vs control"}

@@ -9,6 +9,10 @@ from figspec.spec.panels import LatencyPanel
 
 from helpers import build_recording
 
+# generated spike trains often repeat one time many times: the warning about repeated spike rows
+# is figspec working as it should, not what these tests are about
+pytestmark = pytest.mark.filterwarnings("ignore:.*spike rows repeat another row")
+
 
 def latency_panel(**keys):
     return LatencyPanel.model_validate({"name": "l", "kind": "latency", "unit": "u1", **keys})

@@ -8,6 +8,10 @@ from figspec.compute.psth import bin_edges
 
 from helpers import build_recording, panel, compute_panel
 
+# generated spike trains often repeat one time many times: the warning about repeated spike rows
+# is figspec working as it should, not what these tests are about
+pytestmark = pytest.mark.filterwarnings("ignore:.*spike rows repeat another row")
+
 
 def demo_like(rng, n_trials=12, levels=(0, 20, 40)):
     trials, spikes = [], []
@@ -79,7 +83,6 @@ def test_a_trial_with_no_spikes_lowers_the_rate():
 spike_times = st.lists(st.floats(-0.2, 0.3, allow_nan=False), max_size=30)
 
 
-@pytest.mark.filterwarnings("ignore:.*spike rows repeat another row")   # generated trains repeat times
 @settings(max_examples=60, deadline=None)
 @given(st.lists(spike_times, min_size=1, max_size=6), st.sampled_from([1.0, 2.5, 5.0, 10.0]),
        st.randoms(use_true_random=False))

@@ -9,6 +9,11 @@ from hypothesis import strategies as st
 from figspec.compute.selection import select
 from figspec.compute.trial_counts import level_bin_counts
 from figspec.data.assemble import Layout, assemble
+import pytest
+
+# generated spike trains often repeat one time many times: the warning about repeated spike rows
+# is figspec working as it should, not what these tests are about
+pytestmark = pytest.mark.filterwarnings("ignore:.*spike rows repeat another row")
 
 BIN_US = 5000
 EDGES_MS = np.arange(-50, 151, 5, dtype=float)

@@ -19,6 +19,10 @@ from figspec.data.ticks import samples_to_ticks
 from figspec.errors import DataError
 from figspec.spec.sources import CsvSource, SampleArraysSource
 
+# generated spike trains often repeat one time many times: the warning about repeated spike rows
+# is figspec working as it should, not what these tests are about
+pytestmark = pytest.mark.filterwarnings("ignore:.*spike rows repeat another row")
+
 EDGES_MS = np.arange(-50, 151, 5, dtype=float)
 
 

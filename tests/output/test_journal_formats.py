@@ -67,3 +67,30 @@ def test_one_layout_for_every_format(drawn):
     placed = [ax.get_position().bounds for ax in fig.axes]
     figure_files(fig, resolved.style, ["pdf", "svg", "eps"], 300, "figspec")
     assert [ax.get_position().bounds for ax in fig.axes] == placed
+
+
+def test_source_data_say_units_and_write_counts_as_whole_numbers(demo_render):
+    """Every table with a level names its unit; every count column (n_*, count) is written as whole
+    numbers in every file (30, never 30.0), so one quantity has one type across files."""
+    import csv
+
+    out, _ = demo_render
+    for path in sorted(out.glob("*_data/*.csv")):
+        with open(path, newline="") as handle:
+            rows = list(csv.reader(handle))
+        header, body = rows[0], rows[1:]
+        if "level" in header and path.name != "statistics.csv":
+            assert "level_unit" in header, path
+        for i, column in enumerate(header):
+            if column.startswith("n_") or column in ("n", "count"):
+                assert all(r[i] == "" or r[i].lstrip("-").isdigit() for r in body), (path, column)
+
+
+def test_the_manifest_records_what_changes_bytes(demo_render):
+    import json
+
+    out, _ = demo_render
+    manifest = json.loads((out / "level_grid_data" / "manifest.json").read_text())
+    versions = manifest["build"]["versions"]
+    assert {"python", "numpy", "matplotlib", "freetype", "font", "pillow"} <= set(versions)
+    assert [i["path"] for i in manifest["inputs"] if i["role"] == "spec"] == ["level_grid.toml"]
