@@ -112,3 +112,33 @@ class Labels:
     x: str | None = None
     y: str | None = None
     y_unit: str | None = None
+
+
+SPARE = 1.34          # the axes' final size may exceed its grid share before layout by this much, at most
+IMAGE_PPI = 300        # common practice (journal figure guides): embedded images at 300 pixels per inch or more
+
+
+def repeats_for(ax, cells: int, side: str) -> int:
+    """How many times each density cell is repeated so the embedded image has at least IMAGE_PPI
+    pixels per inch at its size on the page (the cells stay the cells: each is a block of equal
+    pixels, so a viewer's resampling cannot blur one into another). The layout engine has not run
+    yet, so the axes' grid share is taken with a third to spare (a colour bar or labels may move
+    it), never more than its whole subfigure."""
+    import numpy as np
+
+    sub = ax.get_figure(root=False)
+    box = ax.get_position()
+    whole = (sub.bbox.width if side == "width" else sub.bbox.height) / sub.dpi
+    share = (box.width if side == "width" else box.height) * whole
+    inches = min(whole, SPARE * share)
+
+    return max(1, int(np.ceil(IMAGE_PPI * inches / max(cells, 1))))
+
+
+def at_page_resolution(ax, grid):
+    """An image's cells repeated (whole cells, nearest neighbour) so that it embeds at no fewer
+    than IMAGE_PPI pixels per inch in the axes ``ax``: vector files carry it as the journals ask."""
+    import numpy as np
+
+    rows, cols = grid.shape[:2]
+    return np.repeat(np.repeat(grid, repeats_for(ax, rows, "height"), axis=0), repeats_for(ax, cols, "width"), axis=1)

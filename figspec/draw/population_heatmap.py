@@ -10,7 +10,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from figspec.compute.population_heatmap import colour_limits
-from figspec.draw.context import DrawContext, Labels
+from figspec.draw.context import DrawContext, Labels, at_page_resolution
 from figspec.draw.psth import TIME_LABEL
 from figspec.optional import deferred
 from figspec.spec.models import LevelSpec
@@ -42,7 +42,7 @@ def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: PopulationHeatmapPa
         (bool((finite < low).any()), bool((finite > high).any()))]
     cmap = "RdBu_r" if panel.scale == "z_score" else "viridis"
     w0, w1 = panel.window_ms
-    image = ax.imshow(values, cmap=cmap, vmin=low, vmax=high, extent=(w0, w1, len(units) - 0.5, -0.5), aspect="auto",
+    image = ax.imshow(at_page_resolution(ax, values), cmap=cmap, vmin=low, vmax=high, extent=(w0, w1, len(units) - 0.5, -0.5), aspect="auto",
                       interpolation="none", gid="population_heatmap")
     ax.axvline(0.0, color="white" if panel.scale == "peak" else "black", linestyle="--",   # seen on the map
                linewidth=ctx.style.axes.line_pt, gid="onset")

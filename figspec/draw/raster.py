@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from figspec.draw.context import DrawContext, Labels, group_key
+from figspec.draw.context import DrawContext, Labels, at_page_resolution, group_key
 from figspec.draw.psth import TIME_LABEL
 from figspec.optional import deferred
 from figspec.spec.models import LevelSpec
@@ -115,6 +115,7 @@ def draw_density(axes: dict, table: pd.DataFrame, panel: RasterPanel, ctx: DrawC
         gi = table["row_start"].to_numpy()[lo:hi] * k // n
         ti = np.rint((table["bin_start_ms"].to_numpy()[lo:hi] - w0) / (w1 - w0) * n_time).astype(int)
         grid[gi, np.clip(ti, 0, n_time - 1)] = rates[lo:hi]
+        grid = at_page_resolution(ax, grid)
         image = ax.imshow(grid, cmap=ink, norm=norm, extent=(w0, w1, n - 0.5, -0.5), aspect="auto",
                           interpolation="none", origin="upper", gid="raster_density", zorder=-1)  # shading over it
         ax.set_ylim(n - 0.5, -0.5)

@@ -41,8 +41,43 @@ def journal_check(fig: "Figure", files: dict[str, bytes], profile: Profile,
     categorical colours off that panel's artists (its kind's, from the registry)."""
     findings = _size(fig, profile) + _text(fig, profile) + _lines(fig, profile)
     findings += _colours(categorical_colours(fig, categories), profile)
-    findings += _fonts(files, profile) + _file_size(files, profile)
+    findings += _fonts(files, profile) + _file_size(files, profile) + _images(fig, profile)
     return findings
+
+
+def _images(fig, profile: Profile) -> list[Finding]:
+    """Images embedded in the figure (a density raster) with fewer pixels per inch on the page
+    than the profile asks: journals' checks flag them, and they print blocky."""
+    from matplotlib.image import AxesImage
+
+    out = []
+    for image in fig.findobj(AxesImage):
+        rows, cols = np.asarray(image.get_array()).shape[:2]
+        box = image.get_window_extent()
+        width_in, height_in = box.width / fig.dpi, box.height / fig.dpi
+        if width_in <= 0 or height_in <= 0:
+            continue
+        ppi = min(cols / width_in, rows / height_in)
+        if ppi < profile.min_image_ppi - 1e-6:
+            out.append(Finding("image resolution", panel_of(image), image.get_gid() or "image",
+                               f"{ppi:.0f} pixels per inch on the page, below {profile.min_image_ppi:g} "
+                               f"({cols} x {rows} pixels over {width_in * MM_PER_INCH:.0f} x "
+                               f"{height_in * MM_PER_INCH:.0f} mm)"))
+    return out
+
+
+def format_findings(formats, png_dpi: int, profile: Profile) -> list[Finding]:
+    """The files the profile asks for that the render does not write, and a PNG or TIFF below
+    the resolution it asks."""
+    out = []
+    missing = [f for f in profile.formats if f not in formats]
+    if missing:
+        out.append(Finding("formats", "figure", "files", f"the journal takes {', '.join(profile.formats)}; "
+                                                          f"not written: {', '.join(missing)} (set figure.formats)"))
+    if any(f in formats for f in ("png", "tiff")) and png_dpi < profile.min_png_dpi - 1e-9:
+        out.append(Finding("resolution", "figure", "files", f"png_dpi = {png_dpi} is below the "
+                                                            f"{profile.min_png_dpi:g} dpi the journal asks"))
+    return out
 
 
 def _size(fig, profile: Profile) -> list[Finding]:

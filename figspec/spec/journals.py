@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from pathlib import Path
-from typing import Annotated
+from typing import Annotated, Literal
 
 from pydantic import Field
 
@@ -26,6 +26,9 @@ class Profile(Frozen):
     truetype_fonts: bool = True
     cvd_min_delta_e: Annotated[float, Field(ge=0)] = 10.0
     max_file_mb: Positive = 10.0
+    min_image_ppi: Positive = 300.0          # an image embedded in the figure (a density raster), per inch on the page
+    formats: list[Literal["svg", "pdf", "png", "tiff", "eps"]] = Field(default_factory=list)   # files it takes
+    min_png_dpi: Positive = 300.0            # resolution of the PNG and TIFF files
 
 
 def profile_path(name: str, folder: Path | None = None) -> Path:

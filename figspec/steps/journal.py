@@ -7,7 +7,7 @@ from dataclasses import replace
 
 from figspec.draw.context import styled
 from figspec.errors import UserError
-from figspec.output.journal_check import journal_check
+from figspec.output.journal_check import format_findings, journal_check
 from figspec.output.layout_check import layout_check
 from figspec.registry import kind_of
 from figspec.spec.journals import Profile, load_profile
@@ -42,4 +42,5 @@ def findings(resolved: Resolved, fig, files: dict[str, bytes], target: Profile) 
     """Every finding of ``target`` on the drawn figure and its files."""
     readers = {p.name: kind_of(p).categories for p in resolved.panels}
     with styled(resolved.style):
-        return journal_check(fig, files, target, readers)
+        found = journal_check(fig, files, target, readers)
+    return found + format_findings(list(files), resolved.spec.model.figure.png_dpi, target)

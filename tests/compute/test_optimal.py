@@ -9,8 +9,8 @@ from helpers import build_recording, panel, compute_panel
 
 def test_bin_cost_hand_example():
     # Shimazaki & Shinomoto 2007, Neural Comput 19:1503, cost C = (2 k_mean - v) / (n D)^2 with the
-    # biased variance; hand check value from ../shared/REFERENCES.md: k_mean = 0.7, v = 0.61,
-    # C = 0.1975 (the unbiased variance would give 0.1806).
+    # biased variance; worked by hand from the formula for these counts: k_mean = 0.7, v = 0.61,
+    # C = (1.4 - 0.61) / (2 x 1)^2 = 0.1975 (the unbiased variance would give 0.1806).
     counts = [2, 0, 0, 0, 2, 0, 1, 0, 1, 1]
     assert bin_cost(counts, n_trials=2, width=1.0) == pytest.approx(0.1975, abs=1e-12)
 

@@ -81,8 +81,13 @@ def test_the_picture_is_the_table_in_rank_order(tmp_path):
     fig = draw_now(pipeline.draw(resolved, tables))
     matrix = tables.panels["map"]["matrix"]
     [image] = [a for ax in fig.subfigs[0].axes for a in ax.images if a.get_gid() == "population_heatmap"]
-    shown = image.get_array()
     order = matrix.drop_duplicates("unit").sort_values("rank")["unit"].tolist()
+    embedded = np.asarray(image.get_array())
+    n_bins = matrix["bin_start_ms"].nunique()             # each cell is embedded as a block of equal pixels
+    fy, fx = embedded.shape[0] // len(order), embedded.shape[1] // n_bins
+    assert embedded.shape == (fy * len(order), fx * n_bins)
+    shown = embedded[::fy, ::fx]
+    np.testing.assert_array_equal(np.repeat(np.repeat(shown, fy, axis=0), fx, axis=1), embedded)
     for row, unit in enumerate(order):
         np.testing.assert_allclose(shown[row], matrix[matrix["unit"] == unit].sort_values("bin_start_ms")["value"])
     low, high = image.get_clim()

@@ -40,7 +40,8 @@ def test_counts_equal_numpy_histogram(rng):
 
 
 def test_rate_is_count_over_trials_presented_times_width(rng):
-    # rate = count / (n_trials x bin width): common practice, REFERENCES.md "Rate estimation"
+    # rate = count / (n_trials x bin width): common practice (e.g. Dayan & Abbott 2001, Theoretical
+    # Neuroscience, ch. 1, the trial-averaged rate), from memory
     rec, _, _ = demo_like(rng)
     table = compute_panel(rec, panel("psth", window_ms=(-50, 150), bin_ms=5))
     assert (table["n_trials"] == 12).all()

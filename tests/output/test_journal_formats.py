@@ -94,3 +94,20 @@ def test_the_manifest_records_what_changes_bytes(demo_render):
     versions = manifest["build"]["versions"]
     assert {"python", "numpy", "matplotlib", "freetype", "font", "pillow"} <= set(versions)
     assert [i["path"] for i in manifest["inputs"] if i["role"] == "spec"] == ["level_grid.toml"]
+
+
+def test_the_journal_check_flags_low_resolution_images_and_missing_formats():
+    from figspec.output.journal_check import _images, format_findings
+    from figspec.spec.journals import load_profile
+
+    nature = load_profile("nature")
+    resolved = pipeline.check(SPECS / "pressure_levels.toml")          # a raster drawn as a density image
+    fig = pipeline.draw(resolved, pipeline.compute(resolved))
+    with __import__("figspec.draw.context", fromlist=["styled"]).styled(resolved.style):
+        fig.draw_without_rendering()
+        assert _images(fig, nature) == []                              # drawn at 300 pixels per inch or more
+        strict = nature.model_copy(update={"min_image_ppi": 5000.0})
+        assert [f.rule for f in _images(fig, strict)] and all(f.rule == "image resolution" for f in _images(fig, strict))
+    wants = nature.model_copy(update={"formats": ["tiff", "eps"], "min_png_dpi": 600.0})
+    rules = [f.rule for f in format_findings(["png", "pdf"], 300, wants)]
+    assert rules == ["formats", "resolution"]
