@@ -96,6 +96,38 @@ trial_columns = { trial = "trial", level = "level_db", onset = "onset_s", offset
 """
 
 
+def silencing_head(spikes: str = "@DATA@/silencing/s1_spikes.csv", trials: str = "@DATA@/silencing/s1_trials.csv",
+                   height_mm: int = 90) -> str:
+    """A spec's head reading the demo silencing session (a ``light`` column in its trial table):
+    figure, levels as dB SPL with their pressure scale, per-trial stimuli, 0-60 ms and -60-0 ms
+    windows, and the source ``s1``."""
+    return f"""
+[figure]
+title = "t"
+width_mm = 183
+height_mm = {height_mm}
+
+[levels]
+quantity = "Sound level"
+unit = "dB SPL"
+scale = "pressure_db"
+
+[stimulus]
+per_trial = true
+
+[analysis]
+response_ms = [0, 60]
+baseline_ms = [-60, 0]
+
+[sources.s1]
+spikes = "{spikes}"
+trials = "{trials}"
+clock = "session"
+spike_columns = {{ unit = "unit", trial = "trial", time = "time_s" }}
+trial_columns = {{ trial = "trial", level = "level_db", onset = "onset_s", offset = "offset_s", start = "start_s", stop = "stop_s" }}
+"""
+
+
 def draw_now(fig):
     """Attach an Agg canvas and draw, so the layout engine has run and extents are final."""
     from matplotlib.backends.backend_agg import FigureCanvasAgg

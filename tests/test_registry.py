@@ -11,7 +11,7 @@ from figspec import pipeline
 from figspec.registry import PANEL_KINDS
 from figspec.spec.panels import PANEL_MODELS
 
-from helpers import SMALL_SPEC, write_spec
+from helpers import SMALL_SPEC, silencing_head, write_spec
 
 KINDS = sorted(PANEL_KINDS)
 
@@ -80,37 +80,7 @@ def test_the_journal_check_reads_every_kind(rendered):
     assert all(f.panel != "figure" or f.rule in ("width", "height") for f in result.findings)
 
 
-SPLIT_HEAD = """
-[figure]
-title = "t"
-width_mm = 183
-height_mm = 60
-
-[levels]
-quantity = "Sound level"
-unit = "dB SPL"
-scale = "pressure_db"
-
-[stimulus]
-per_trial = true
-
-[sources.s1]
-spikes = "@DATA@/silencing/s1_spikes.csv"
-trials = "@DATA@/silencing/s1_trials.csv"
-clock = "session"
-spike_columns = { unit = "unit", trial = "trial", time = "time_s" }
-
-[sources.s1.trial_columns]
-trial = "trial"
-level = "level_db"
-onset = "onset_s"
-offset = "offset_s"
-start = "start_s"
-stop = "stop_s"
-
-[[panels]]
-name = "split"
-"""
+SPLIT_HEAD = silencing_head(height_mm=60) + '\n[[panels]]\nname = "split"\n'
 
 
 @pytest.mark.parametrize("kind", KINDS)

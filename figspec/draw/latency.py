@@ -9,8 +9,8 @@ import numpy as np
 
 from figspec.draw.colours import category_gid, series
 from figspec.draw.context import DrawContext, Labels
-from figspec.draw.level_axis import (draw_fit, level_limits, mark_differences, own_limits, set_level_scale, shifted, unit_shifts_pt,
-                                     versus_title)
+from figspec.draw.level_axis import (draw_fit, level_limits, mark_differences, own_limits, same_series, series_key,
+                                     set_level_scale, shifted, unit_shifts_pt, versus_title)
 from figspec.optional import deferred
 from figspec.spec.models import LevelSpec
 from figspec.spec.panels import LatencyPanel
@@ -44,19 +44,11 @@ def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: LatencyPanel, ctx: 
                 transform=at, clip_on=False, in_layout=False)
         ax.plot(x[~responsive], y[~responsive], marker, color="white", markeredgecolor=c, gid=f"points_ns:{name}",
                 transform=at, clip_on=False, in_layout=False)
-        fitted = curve[curve["unit"] == rows["unit"].iloc[0]]
-        if "condition" in curve.columns:
-            fitted = fitted[fitted["condition"] == rows["condition"].iloc[0]]
-        draw_fit(ax, fitted, "latency_ms", c, name, dash)
+        draw_fit(ax, same_series(curve, rows), "latency_ms", c, name, dash)
     if "tests" in tables:
         mark_differences(ax, tables["tests"], points, "ci_high_ms", panel.alpha)
     own_limits(ax, limits(panel, tables))            # offset artists do not enter matplotlib's autoscaling
-    handles, names = ax.get_legend_handles_labels()
-    if "condition" in points.columns:            # conditions differ by line style too: the key shows it
-        from matplotlib.lines import Line2D
-
-        handles = [Line2D([], [], color=c, marker=m, linestyle=dash) for _, _, c, m, dash, _ in lines]
-        names = [label for *_, label in lines]
+    handles, names = series_key(ax, points, lines)
     if len(colours) == 1:                        # one line: the key explains markers only
         handles, names = [], []
     title = (f"open: p \u2265 {panel.alpha:g} ({points['correction'].iloc[0]})" if (~points["responsive"]).any()

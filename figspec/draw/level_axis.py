@@ -114,6 +114,25 @@ def draw_fit(ax: "Axes", fitted, y: str, colour, unit: str, line: str = "-") -> 
         ax.plot(rows["level"], rows[y], style, color=colour, gid=f"fit:{unit}:{status}", linewidth=width)
 
 
+def same_series(curve, rows):
+    """The fitted curve's rows of the series ``rows`` belong to (its unit, and its condition)."""
+    fitted = curve[curve["unit"] == rows["unit"].iloc[0]]
+    if "condition" in curve.columns:
+        fitted = fitted[fitted["condition"] == rows["condition"].iloc[0]]
+    return fitted
+
+
+def series_key(ax: "Axes", points, lines: list[tuple]) -> tuple[list, list[str]]:
+    """The key's handles and names: the axes' own, or, where conditions differ by line style too,
+    one handle per series showing its colour, marker and line."""
+    if "condition" not in points.columns:
+        return ax.get_legend_handles_labels()
+    from matplotlib.lines import Line2D
+
+    return ([Line2D([], [], color=c, marker=m, linestyle=dash) for _, _, c, m, dash, _ in lines],
+            [label for *_, label in lines])
+
+
 STAR_PT = 3.0      # gap between a point's upper error bar and the mark of a difference between conditions
 
 

@@ -20,42 +20,10 @@ from scipy.stats import mannwhitneyu, rankdata, wilcoxon
 from figspec import pipeline
 from figspec.errors import UserError
 
-from helpers import SPECS, write_spec
+from helpers import SPECS, silencing_head, write_spec
 
 DATA = SPECS / "data" / "silencing"
 
-HEAD = """
-[figure]
-title = "t"
-width_mm = 183
-height_mm = 90
-
-[levels]
-quantity = "Sound level"
-unit = "dB SPL"
-scale = "pressure_db"
-
-[stimulus]
-per_trial = true
-
-[analysis]
-response_ms = [0, 60]
-baseline_ms = [-60, 0]
-
-[sources.s1]
-spikes = "SPIKES"
-trials = "TRIALS"
-clock = "session"
-spike_columns = { unit = "unit", trial = "trial", time = "time_s" }
-
-[sources.s1.trial_columns]
-trial = "trial"
-level = "level_db"
-onset = "onset_s"
-offset = "offset_s"
-start = "start_s"
-stop = "stop_s"
-"""
 
 
 def spec(tmp_path, panels: str, trials: pd.DataFrame | None = None, spikes: pd.DataFrame | None = None):
@@ -66,7 +34,7 @@ def spec(tmp_path, panels: str, trials: pd.DataFrame | None = None, spikes: pd.D
     if spikes is not None:
         spike_file = tmp_path / "spikes.csv"
         spikes.to_csv(spike_file, index=False)
-    text = HEAD.replace("SPIKES", str(spike_file)).replace("TRIALS", str(trial_file)) + panels
+    text = silencing_head(str(spike_file), str(trial_file)) + panels
     return write_spec(tmp_path, text)
 
 
