@@ -60,11 +60,44 @@ def unit_row(rec: Recording, unit: str, panel: PopulationHeatmapPanel, edges: np
             "per_level": (sel.levels, sel.n_trials)}
 
 
-def sort_keys(rec: Recording, units: list[str], rows: dict, panel: PopulationHeatmapPanel) -> dict[str, float | str]:
+def fitted_keys(rec: Recording, units: list[str], panel: PopulationHeatmapPanel,
+                levels: LevelSpec) -> dict[str, tuple[float, str]]:
+    """Each unit's Naka-Rushton parameter (and its fit status), fitted exactly as a level_response
+    panel fits the unit's response in ``response_ms`` (rate, baseline not subtracted)."""
+    import warnings
+
+    from figspec.compute import level_response
+    from figspec.errors import FigspecWarning
+    from figspec.spec.panels import LevelResponsePanel
+
+    baseline = panel.baseline_ms or (panel.window_ms[0], 0.0)
+    analysis = LevelResponsePanel.model_validate({"name": panel.name, "kind": "level_response", "units": units,
+                                                  "levels": panel.levels, "response_ms": panel.response_ms,
+                                                  "baseline_ms": baseline, "fit": "naka_rushton", "test": "none"})
+    with warnings.catch_warnings():                  # every unit's fit status is in the matrix's note
+        warnings.simplefilter("ignore", FigspecWarning)
+        params = level_response.compute(rec, analysis, levels)["params"]
+    out = {}
+    for unit in units:
+        mine = params[params["unit"] == unit].set_index("quantity")
+        status = str(mine.loc["status", "note"]).split(":")[0] if "status" in mine.index else "failed"
+        value = float(mine.loc[panel.sort_parameter, "value"]) if panel.sort_parameter in mine.index else np.nan
+        out[unit] = (value if status != "failed" else np.nan, status)
+    return out
+
+
+def sort_keys(rec: Recording, units: list[str], rows: dict, panel: PopulationHeatmapPanel,
+              levels: LevelSpec | None = None) -> dict[str, float | str]:
     if panel.sort_by in ("latency", "peak_time"):
         return {u: rows[u][panel.sort_by] for u in units}
     if panel.sort_by == "name":
         return {u: u for u in units}
+    if panel.sort_by == "fit":
+        fitted = fitted_keys(rec, units, panel, levels)
+        for unit, (_, status) in fitted.items():
+            if status != "ok" and unit in rows:
+                rows[unit]["note"] = "; ".join(filter(None, [rows[unit]["note"], f"Naka-Rushton fit {status}"]))
+        return {u: fitted[u][0] for u in units}
     table = rec.unit_properties or {}
     column = table.get(panel.sort_column)
     if column is None:
@@ -100,7 +133,7 @@ def compute(rec: Recording, panel: PopulationHeatmapPanel, levels: LevelSpec) ->
     units = panel.unit_names() or list(rec.units)
     edges = bin_edges(panel.window_ms, panel.bin_ms)
     rows = {u: unit_row(rec, u, panel, edges) for u in units}
-    keys = sort_keys(rec, units, rows, panel)
+    keys = sort_keys(rec, units, rows, panel, levels)
     frames = []
     for rank, unit in enumerate(order(keys)):
         row = rows[unit]
@@ -155,8 +188,10 @@ def statistics(panel: PopulationHeatmapPanel, tables: dict[str, pd.DataFrame]) -
 def legend(panel: PopulationHeatmapPanel, tables: dict[str, pd.DataFrame], about: About) -> str:
     table = tables["matrix"]
     first = table.drop_duplicates("unit")
-    sort = f"{panel.sort_column} in the per-unit table" if panel.sort_by == "table" else SORT_TEXT[panel.sort_by]
-    where = f" in {window_text(panel.response_ms)}" if panel.sort_by in ("latency", "peak_time") else ""
+    sort = f"{panel.sort_column} in the per-unit table" if panel.sort_by == "table" else (
+        f"{panel.sort_parameter} of each unit's own Naka-Rushton fit to its rate" if panel.sort_by == "fit"
+        else SORT_TEXT[panel.sort_by])
+    where = f" in {window_text(panel.response_ms)}" if panel.sort_by in ("latency", "peak_time", "fit") else ""
     scale = (f"z-scored against each unit's own baseline ({window_text(baseline(panel))}; mean and SD across its "
              "bins)" if panel.scale == "z_score" else "divided by each unit's own peak rate")
     missing = int(first["sort_key"].isna().sum()) if first["sort_key"].dtype.kind == "f" else 0

@@ -62,5 +62,6 @@ def draw(ax: "Axes", tables: dict[str, pd.DataFrame], panel: PopulationHeatmapPa
 
 def labels(panel: PopulationHeatmapPanel, tables: dict[str, pd.DataFrame], levels: LevelSpec) -> Labels:
     n = tables["matrix"]["unit"].nunique()
-    sort = panel.sort_column if panel.sort_by == "table" else SORT_LABELS[panel.sort_by]
+    sort = panel.sort_column if panel.sort_by == "table" else (
+        f"fitted {panel.sort_parameter}" if panel.sort_by == "fit" else SORT_LABELS[panel.sort_by])
     return Labels(f"Population (n = {n} units)", TIME_LABEL, panel.y_label or f"Unit (by {sort})")

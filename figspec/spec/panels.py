@@ -172,7 +172,9 @@ class PopulationHeatmapPanel(PanelBase):
     peak (``"peak"``), averaged over the panel's ``levels`` (every level presented when not set;
     each level weighs the same). Rows are sorted by ``sort_by``: the median first-spike latency in
     ``response_ms``, the time of the rate's peak in ``response_ms``, the unit's name, or a column of
-    the source's per-unit table (``sort_by = "table"`` with ``sort_column``)."""
+    the source's per-unit table (``sort_by = "table"`` with ``sort_column``), or a parameter of each
+    unit's own Naka-Rushton fit to its response in ``response_ms`` (``sort_by = "fit"`` with
+    ``sort_parameter``; units whose fit failed come last, and poorly constrained ones are noted)."""
 
     kind: Literal["population_heatmap"]
     units: Annotated[list[str], Field(min_length=2)] | Literal["all"] = "all"
@@ -181,8 +183,9 @@ class PopulationHeatmapPanel(PanelBase):
     scale: Literal["z_score", "peak"] = "z_score"
     baseline_ms: WindowMs | None = None
     response_ms: WindowMs = (0.0, 50.0)
-    sort_by: Literal["latency", "peak_time", "name", "table"] = "latency"
+    sort_by: Literal["latency", "peak_time", "name", "table", "fit"] = "latency"
     sort_column: str | None = None
+    sort_parameter: Literal["L50", "n", "Rmax", "R0"] | None = None
     colour_limit: Magnitude | None = None
     y_label: Text | None = None
 
@@ -202,12 +205,18 @@ class PopulationHeatmapPanel(PanelBase):
         if (self.sort_by == "table") != (self.sort_column is not None):
             raise ValueError("sort_by = 'table' sorts by a column of the per-unit table: name it with sort_column "
                              "(and set sort_column only with sort_by = 'table')")
+        if (self.sort_by == "fit") != (self.sort_parameter is not None):
+            raise ValueError("sort_by = 'fit' sorts by a parameter of each unit's Naka-Rushton fit: name it with "
+                             "sort_parameter (L50, n, Rmax or R0), and set sort_parameter only with sort_by = 'fit'")
         if self.unit is not None:
             raise ValueError("a population heatmap shows several units: use units = [...] or units = 'all'")
         if self.conditions is not None:
             raise ValueError("a heatmap shows one condition (its colour is already the rate): draw one heatmap per "
                              "condition, each with keep.where")
         return self
+
+    def fitted_model(self) -> str | None:
+        return "naka_rushton" if self.sort_by == "fit" else None
 
     def windows(self) -> dict[str, tuple[float, float]]:
         return {"window_ms": self.window_ms, "response_ms": self.response_ms} | (

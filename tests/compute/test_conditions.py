@@ -319,3 +319,36 @@ def test_the_baseline_test_reports_its_effect_size(tmp_path):
     stats = statistics(resolved, pipeline.compute(resolved))
     tested = stats[(stats["section"] == "test") & (stats["panel"] == "lr")]
     assert {"statistic", "n", "p", "p_corrected", "matched-pairs rank-biserial r"} <= set(tested["quantity"])
+
+
+@pytest.mark.filterwarnings("ignore:.*Naka.Rushton fit")          # the level_response panel reports its fits
+def test_a_heatmap_sorted_by_a_fitted_parameter_follows_the_units_own_fits(tmp_path):
+    """Rows in the order of each unit's Naka-Rushton L50, as a level_response panel of the same unit
+    and window fits it (the same analysis, so the same number); units whose fit failed last."""
+    panels = """
+[[panels]]
+name = "map"
+kind = "population_heatmap"
+units = ["u01", "u02", "u03", "u04", "u05", "u06"]
+sort_by = "fit"
+sort_parameter = "L50"
+response_ms = [0, 60]
+"""
+    tables = pipeline.compute(pipeline.check(spec(tmp_path, panels))).panels["map"]["matrix"]
+    first = tables.drop_duplicates("unit").sort_values("rank")
+    alone = """
+[[panels]]
+name = "lr"
+kind = "level_response"
+units = ["u01", "u02", "u03", "u04", "u05", "u06"]
+fit = "naka_rushton"
+test = "none"
+baseline_ms = [-50, 0]
+"""
+    params = pipeline.compute(pipeline.check(spec(tmp_path, alone))).panels["lr"]["params"]
+    l50 = params[params["quantity"] == "L50"].set_index("unit")["value"]
+    keys = first.set_index("unit")["sort_key"]
+    finite = keys.dropna()
+    np.testing.assert_allclose(finite.to_numpy(), l50[finite.index].to_numpy(), rtol=1e-12)
+    assert list(finite.index) == list(finite.sort_values(kind="stable").index)
+    assert first["sort_key"].isna().to_numpy().tolist() == sorted(first["sort_key"].isna().tolist())
