@@ -47,6 +47,10 @@ class PanelPlan:
     group_labels: list[str]
 
 
+EDGE_EM = 0.25         # the page margin: a quarter of an em of the largest text (a font's line box reaches a
+EDGE_PT = 1.5          # fifth of an em past its glyphs) plus the 0.5 mm the layout check keeps (see compose)
+
+
 def compose(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> "Figure":
     """Build the figure for ``plans`` (call inside :func:`figspec.draw.context.styled`)."""
     from matplotlib.figure import Figure
@@ -75,9 +79,7 @@ def compose(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> "Figu
         apply_ticks(axes_of[plan.panel.name], plan.panel, ("panels", i))
     if layout and layout.letters:
         _letters(fig, ctx)
-    if spec.figure.title:
-        fig.suptitle(spec.figure.title)
-        _fit_width(fig, fig._suptitle, spec.figure.width_mm - 2 * TITLE_MARGIN_MM)
+    _page_margin(fig, spec, ctx)
     if appearance and spec.stimulus.key:
         ranges = any(p.stimulus is not None and ((p.stimulus["stop_max_ms"] > p.stimulus["stop_min_ms"]).any()
                                                  or (p.stimulus["start_max_ms"] > p.stimulus["start_ms"]).any())
@@ -90,6 +92,27 @@ def compose(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> "Figu
                      ranges, shaded if len(shaded) > 1 else None, sham)
     typeset_math(fig, math_pieces(spec))
     return fig
+
+
+def _page_margin(fig, spec: FigureFile, ctx: DrawContext) -> None:
+    """Keep every text's line box inside the page. Text boxes measure the glyphs, but a PDF reader
+    (and a journal's check) measures a font's full line height, up to a fifth of an em beyond them,
+    so the layout engine works inside a margin of a quarter em of the largest text plus the
+    0.5 mm the layout check asks; the figure's title sits at the margin's top, with its lines'
+    height kept free below it."""
+    font = ctx.style.font
+    edge_pt = EDGE_PT + EDGE_EM * max(font.figure_title_pt, font.title_pt, ctx.style.letters.size_pt, font.body_pt)
+    width_pt, height_pt = fig.get_size_inches() * 72
+    top = 1 - edge_pt / height_pt
+    if spec.figure.title:
+        fig.suptitle(spec.figure.title, y=top, va="top")
+        _fit_width(fig, fig._suptitle, spec.figure.width_mm - 2 * TITLE_MARGIN_MM)
+        lines = fig._suptitle.get_text().count("\n") + 1
+        size = float(fig._suptitle.get_fontsize())
+        top -= (lines * 1.2 * size + 1.5) / height_pt          # matplotlib's line spacing is 1.2 em
+    inner = max(0.0, edge_pt - 1.5)                            # the layout engine pads 1.5 pt itself
+    mx, my = inner / width_pt, inner / height_pt
+    fig.get_layout_engine().set(rect=(mx, my, 1 - 2 * mx, top - my))
 
 
 def _appearance(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> dict:

@@ -18,6 +18,7 @@ if TYPE_CHECKING:
     from matplotlib.figure import Figure
 
 MM_PER_INCH = 25.4
+LINE_BOX_EM = 0.2      # a font's ascender and descender reach about this far beyond its glyphs (DejaVu, Liberation)
 EDGE_MM = 0.5          # common practice: text keeps at least this far from the trimmed page edge
 MIN_TEXT_PT = 5.0      # common practice: the smallest text journals print (Nature, Cell: 5-7 pt)
 SLACK_PX = 0.5         # overlaps smaller than this (anti-aliasing) are not defects
@@ -68,7 +69,12 @@ def _edges(fig, texts: list, edge_mm: float) -> list[LayoutFinding]:
     margin = edge_mm / MM_PER_INCH * fig.dpi
     out = []
     for text, box in texts:
-        gap = min(box.x0 - page.x0, box.y0 - page.y0, page.x1 - box.x1, page.y1 - box.y1)
+        # the font's line box, as a PDF reader measures a word: up to a fifth of an em past the glyphs
+        # (across the line: above and below for level text, to the sides for text turned 90 degrees)
+        pad = LINE_BOX_EM * float(text.get_fontsize()) / 72 * fig.dpi
+        turned = abs(((text.get_rotation() + 45) % 180) - 45) > 45
+        px, py = (pad, 0.0) if turned else (0.0, pad)
+        gap = min(box.x0 - px - page.x0, box.y0 - py - page.y0, page.x1 - box.x1 - px, page.y1 - box.y1 - py)
         if gap < -SLACK_PX:
             out.append(LayoutFinding("clipped", panel_of(text), f"text {_name(text)}",
                                      f"reaches {-gap / fig.dpi * MM_PER_INCH:.2f} mm past the page edge"))

@@ -111,3 +111,21 @@ def test_the_journal_check_flags_low_resolution_images_and_missing_formats():
     wants = nature.model_copy(update={"formats": ["tiff", "eps"], "min_png_dpi": 600.0})
     rules = [f.rule for f in format_findings(["png", "pdf"], 300, wants)]
     assert rules == ["formats", "resolution"]
+
+
+def test_no_word_of_a_pdf_crosses_the_page_edge_as_poppler_reads_it(tmp_path, cli):
+    """pdftotext -bbox (poppler) gives each word's box from the font's full line height; in the
+    large_print style every word of the figure lies inside the page."""
+    import shutil
+    import subprocess
+
+    if shutil.which("pdftotext") is None:
+        pytest.skip("poppler-utils (pdftotext) is not installed")
+    result = cli("render", SPECS / "level_summary.toml", "-o", tmp_path, "--style", "large_print", "--format", "pdf")
+    assert result.returncode == 0, result.stderr
+    html = subprocess.run(["pdftotext", "-bbox", str(tmp_path / "level_summary.pdf"), "-"], capture_output=True,
+                          text=True, check=True).stdout
+    width, height = (float(v) for v in re.search(r'<page width="([\d.]+)" height="([\d.]+)"', html).groups())
+    words = [tuple(map(float, m)) for m in re.findall(
+        r'<word xMin="([\d.-]+)" yMin="([\d.-]+)" xMax="([\d.-]+)" yMax="([\d.-]+)"', html)]
+    assert words and all(x0 >= 0 and y0 >= 0 and x1 <= width and y1 <= height for x0, y0, x1, y1 in words)
