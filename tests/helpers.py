@@ -96,15 +96,13 @@ trial_columns = { trial = "trial", level = "level_db", onset = "onset_s", offset
 """
 
 
-def silencing_head(spikes: str = "@DATA@/silencing/s1_spikes.csv", trials: str = "@DATA@/silencing/s1_trials.csv",
-                   height_mm: int = 90) -> str:
-    """A spec's head reading the demo silencing session (a ``light`` column in its trial table):
-    figure, levels as dB SPL with their pressure scale, per-trial stimuli, 0-60 ms and -60-0 ms
-    windows, and the source ``s1``."""
+def level_head(width_mm: int = 183, height_mm: int = 90) -> str:
+    """A spec's head for tests of level-dependent kinds: figure, levels as dB SPL with their
+    pressure scale, per-trial stimuli, and 0-60 ms response and -60-0 ms baseline windows."""
     return f"""
 [figure]
 title = "t"
-width_mm = 183
+width_mm = {width_mm}
 height_mm = {height_mm}
 
 [levels]
@@ -118,7 +116,14 @@ per_trial = true
 [analysis]
 response_ms = [0, 60]
 baseline_ms = [-60, 0]
+"""
 
+
+def silencing_head(spikes: str = "@DATA@/silencing/s1_spikes.csv", trials: str = "@DATA@/silencing/s1_trials.csv",
+                   height_mm: int = 90) -> str:
+    """:func:`level_head` with the demo silencing session (a ``light`` column in its trial table)
+    as the source ``s1``."""
+    return level_head(height_mm=height_mm) + f"""
 [sources.s1]
 spikes = "{spikes}"
 trials = "{trials}"

@@ -21,6 +21,7 @@ import warnings
 
 import numpy as np
 
+from figspec.compute.describe import count_text
 from figspec.compute.resampling import generator
 from figspec.compute.stats import CORRECTION_SHORT, corrected
 from figspec.optional import deferred
@@ -222,7 +223,7 @@ def split_legend(legend, panel, tables, about, palette, testing: bool = True) ->
         n = ""
         if counted is not None:
             values = counted.loc[counted["condition"] == name, column].to_numpy()
-            n = f", n = {_count(values)} trials per level" if len(values) else ""
+            n = f", n = {count_text(values)} trials per level" if len(values) else ""
         parts.append(f"{name} ({how}{n})")
     text += f" Trials split by the trial-table column {panel.conditions.column}: {'; '.join(parts)}."
     if isinstance(tables, dict) and "tests" in tables:
@@ -231,7 +232,3 @@ def split_legend(legend, panel, tables, about, palette, testing: bool = True) ->
         text += " No test between conditions (this measure gives one value per level, not one per trial)."
     return text
 
-
-def _count(values) -> str:
-    n = np.unique(np.asarray(values, dtype=np.int64))
-    return str(n[0]) if len(n) == 1 else f"{n[0]}–{n[-1]}"

@@ -46,10 +46,6 @@ def output_problem(err: OSError, path: Path) -> OutputError:
 
 def output_folder(path: Path) -> None:
     """Make the output folder (and its parents), or say in one user error why it cannot be."""
-    _folder(path)
-
-
-def _folder(path: Path) -> None:
     try:
         path.mkdir(parents=True, exist_ok=True)
     except FileExistsError as err:
@@ -102,7 +98,7 @@ def write_set(outdir: Path, stem: str, payload: dict[Path, bytes], owned: tuple[
     ``<stem>_data`` folder) is an error: figspec never writes or deletes through one. The last
     path of ``payload`` is moved last (the manifest)."""
     outdir = Path(outdir)
-    _folder(outdir)
+    output_folder(outdir)
     recover(outdir)
     staging = outdir / f"{STAGING_PREFIX}{stem}.{_host()}.{os.getpid()}.staging"
     relative = [p.relative_to(outdir) for p in payload]

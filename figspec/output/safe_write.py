@@ -42,7 +42,7 @@ def write_bytes(path: str | Path, data: bytes, root: str | Path | None = None, m
         fd, temporary = tempfile.mkstemp(dir=parent, prefix=f".{path.name}.", suffix=".tmp")
         with os.fdopen(fd, "wb") as handle:
             handle.write(data)
-        os.chmod(temporary, 0o666 & ~_umask())    # as an ordinary new file (mkstemp makes it 0600)
+        os.chmod(temporary, 0o666 & ~UMASK)    # as an ordinary new file (mkstemp makes it 0600)
         os.replace(temporary, path)
         temporary = None
     except OSError as err:
@@ -55,10 +55,6 @@ def write_bytes(path: str | Path, data: bytes, root: str | Path | None = None, m
 
 def write_text(path: str | Path, text: str, root: str | Path | None = None, make_parents: bool = True) -> Path:
     return write_bytes(path, text.encode("utf-8"), root, make_parents)
-
-
-def _umask() -> int:
-    return UMASK
 
 
 def _read_umask() -> int:

@@ -42,9 +42,6 @@ class TrialSelection(Frozen):
         return not self.exclude and not self.where
 
 
-LINE_STYLES = ("solid", "dashed", "dotted", "dashdot")
-
-
 class ConditionSplit(Frozen):
     """``conditions``: split a panel's trials by a trial-table column into conditions drawn and
     tested against each other. ``values`` gives the conditions and their order (every distinct

@@ -12,25 +12,9 @@ from scipy.stats import mannwhitneyu
 from figspec import pipeline
 from figspec.errors import UserError
 
-from helpers import DEMO_SOURCE, write_spec
+from helpers import DEMO_SOURCE, level_head, write_spec
 
-SPEC = """[figure]
-title = "t"
-width_mm = 89
-height_mm = 80
-
-[levels]
-quantity = "Sound level"
-unit = "dB SPL"
-scale = "pressure_db"
-
-[stimulus]
-per_trial = true
-
-[analysis]
-response_ms = [0, 60]
-baseline_ms = [-60, 0]
-""" + "".join(DEMO_SOURCE.replace("[sources.demo]", f"[sources.{name}]").replace("@DATA@/", f"@DATA@/{prefix}")
+SPEC = level_head(89, 80) + "".join(DEMO_SOURCE.replace("[sources.demo]", f"[sources.{name}]").replace("@DATA@/", f"@DATA@/{prefix}")
               for name, prefix in (("day1", ""), ("day2", "day2_"))) + """
 [[panels]]
 name = "l50"
