@@ -5,7 +5,11 @@ inputs that pass ``check`` is rendered too. Every input must end accepted or wit
 to tests/bad_inputs/found/ (the spec and its data files) so it joins the project's corpus, and
 the run exits 1. Prints how many inputs ran and how they ended.
 
-    python bench/fuzz_check.py [--minutes 10] [--timeout 30] [--render-share 0.1]
+    python bench/fuzz_check.py [--minutes 10] [--timeout 30] [--render-share 0.1] [--seed N]
+
+Each run prints its seed first; ``--seed`` with that number replays the same inputs in the same
+order (on the same checkout and in the same folder layout), so a finding in a CI log can be
+reproduced at a desk.
 """
 
 from __future__ import annotations
@@ -24,6 +28,7 @@ from pathlib import Path
 
 ROOT = Path(__file__).resolve().parents[1]
 FOUND = ROOT / "tests" / "bad_inputs" / "found"
+CORPUS_DATA = ROOT / "tests" / "bad_inputs" / "data"     # where the mutated specs read their data
 
 
 class TimedOut(Exception):
@@ -40,10 +45,13 @@ def keep(folder: Path, kind: str, trace: str) -> Path:
                                      if (folder / n).exists())).hexdigest()[:12]
     target = FOUND / f"{kind}-{digest}"
     target.mkdir(parents=True, exist_ok=True)
-    for name in ("fuzzed.toml", "spikes.csv", "trials.csv"):
+    for name in ("spikes.csv", "trials.csv"):
         if (folder / name).exists():
             shutil.copyfile(folder / name, target / name)
-    (target / "trace.txt").write_text(trace)
+    # the spec as kept reads the copies beside it, not this checkout's corpus, so it replays anywhere
+    text = (folder / "fuzzed.toml").read_text(encoding="utf-8", errors="surrogatepass")
+    (target / "fuzzed.toml").write_text(text.replace(f"{CORPUS_DATA}/", ""), encoding="utf-8", errors="surrogatepass")
+    (target / "trace.txt").write_text(trace.replace(f"{ROOT}/", "<checkout>/"))
     return target
 
 
@@ -52,9 +60,12 @@ def main() -> None:
     parser.add_argument("--minutes", type=float, default=10.0)
     parser.add_argument("--timeout", type=float, default=30.0, help="seconds one input may take")
     parser.add_argument("--render-share", type=float, default=0.1, help="share of accepted inputs also rendered")
+    parser.add_argument("--seed", type=int, default=None, help="replay the inputs of an earlier run")
     args = parser.parse_args()
     sys.path[:0] = [str(ROOT), str(ROOT / "tests")]
-    from hypothesis import HealthCheck, given, settings
+    import random
+
+    from hypothesis import HealthCheck, given, seed, settings
     from hypothesis import strategies as st
 
     from figspec import pipeline
@@ -67,9 +78,9 @@ def main() -> None:
     signal.signal(signal.SIGALRM, _alarm)
     inputs = st.one_of(st.tuples(specs, st.just((SPIKES, TRIALS))), st.tuples(st.just(DATA_SPEC), data_cases))
 
-    @settings(max_examples=500, deadline=None, database=None, derandomize=False,
-              suppress_health_check=list(HealthCheck))
-    @given(case=inputs, render=st.floats(0, 1))
+    first = random.SystemRandom().randrange(2**32) if args.seed is None else args.seed
+    print(f"seed {first}", flush=True)
+
     def one(case, render: float) -> None:
         text, (spikes, trials) = case
         (folder / "fuzzed.toml").write_text(text, encoding="utf-8", errors="surrogatepass")
@@ -97,12 +108,18 @@ def main() -> None:
             signal.setitimer(signal.ITIMER_REAL, 0)
 
     stop = time.monotonic() + 60 * args.minutes
-    while time.monotonic() < stop:
-        one()
+    batch = settings(max_examples=500, deadline=None, database=None, suppress_health_check=list(HealthCheck))
+    run = 0
+    while time.monotonic() < stop:               # batches of 500, each with its own seed derived from the first
+        seed(first + run)(batch(given(case=inputs, render=st.floats(0, 1))(one)))()
+        run += 1
     total = sum(outcomes.values())
     print(f"{total} inputs in {args.minutes:g} min: " + ", ".join(f"{k} {v}" for k, v in sorted(outcomes.items())))
     for path in saved[:10]:
         print(f"kept {path.relative_to(ROOT)}")
+    for path in saved[:3]:                       # enough to reproduce from a CI log alone
+        for name in ("trace.txt", "fuzzed.toml"):
+            print(f"--- {path.name}/{name}\n{(path / name).read_text(errors='replace')}")
     shutil.rmtree(folder, ignore_errors=True)
     if outcomes["internal error"] or outcomes["time-out"]:
         sys.exit(1)

@@ -6,7 +6,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from figspec.data.table import numbers, text
+from figspec.data.table import numbers, text, whole_number
 from figspec.errors import DataError, Loc, Problem
 from figspec.spec.selection import Range, TrialSelection
 
@@ -31,8 +31,7 @@ def _same_type(value, column: np.ndarray | None):
             return None
         if isinstance(value, int) or (isinstance(value, float) and value.is_integer()):
             return int(value)
-        text = str(value).strip()
-        return int(text) if text.lstrip("-").isdigit() else None
+        return whole_number(str(value))
     if isinstance(value, float) and value.is_integer():
         return str(int(value))
     return str(value)

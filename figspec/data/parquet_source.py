@@ -11,7 +11,7 @@ import numpy as np
 
 from figspec.data.columns import Plan, missing_columns
 from figspec.data.csv_source import check_file
-from figspec.data.table import Coded, Table
+from figspec.data.table import Coded, Table, whole_number
 from figspec.errors import DataError, Loc, Problem
 from figspec.spec.sources import ParquetSource
 
@@ -57,8 +57,7 @@ def read_table(path: Path, wanted: Plan, file_loc: Loc, src_loc: Loc, units: set
     typed = None
     if units is not None and unit_column is not None:
         whole = pa.types.is_integer(schema.field(unit_column).type)
-        typed = sorted(int(u) if whole and u.strip().lstrip("-").isdigit() else u for u in units
-                       if not whole or u.strip().lstrip("-").isdigit())
+        typed = sorted(n for n in map(whole_number, units) if n is not None) if whole else sorted(units)
     try:
         table = scanner(path, columns, unit_column, typed).to_table()
     except (pa.ArrowException, OSError) as err:

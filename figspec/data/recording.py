@@ -131,4 +131,5 @@ class Recording:
 
 def natural_key(name: str) -> tuple:
     """Sort 'u2' before 'u10'."""
-    return tuple((0, int(p), "") if p.isdigit() else (1, 0, p) for p in re.split(r"(\d+)", name))
+    return tuple((0, int(p), "") if p[:1].isascii() and p[:1].isdigit() else (1, 0, p)
+                 for p in re.split(r"([0-9]+)", name))

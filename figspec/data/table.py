@@ -9,9 +9,19 @@ them), so a unit name per spike costs a small integer, not its characters.
 
 from __future__ import annotations
 
+import re
 from typing import Iterator, Mapping
 
 import numpy as np
+
+# A whole number as Python's int() reads it, in ASCII only: str.isdigit() also accepts '²' and
+# str.strip() removes control characters such as '\x1c', neither of which int() reads
+WHOLE = re.compile(r"\s*-?[0-9]+\s*", re.ASCII)
+
+
+def whole_number(text: str) -> int | None:
+    """``text`` as an integer when it is a whole number written in ASCII digits, else None."""
+    return int(text) if WHOLE.fullmatch(text) else None
 
 
 class Coded:

@@ -7,6 +7,7 @@ function. Nothing here computes a number that is not drawn from those tables.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any, Callable
 
@@ -112,7 +113,27 @@ def _page_margin(fig, spec: FigureFile, ctx: DrawContext) -> None:
         top -= (lines * 1.2 * size + 1.5) / height_pt          # matplotlib's line spacing is 1.2 em
     inner = max(0.0, edge_pt - 1.5)                            # the layout engine pads 1.5 pt itself
     mx, my = inner / width_pt, inner / height_pt
+    _check_room(((top - my) * height_pt, "height_mm", spec.figure.height_mm),
+                ((1 - 2 * mx) * width_pt, "width_mm", spec.figure.width_mm))
     fig.get_layout_engine().set(rect=(mx, my, 1 - 2 * mx, top - my))
+
+
+MIN_PANELS_MM = 10.0   # below this the panels have no room for a tick label and an axis label each way
+
+
+def _check_room(*sides: tuple[float, str, float]) -> None:
+    """A figure whose page margin and title leave less than MIN_PANELS_MM for the panels, across
+    or down, is refused (the layout engine has no solution there)."""
+    from figspec.errors import DataError, Problem
+
+    for room_pt, key, size_mm in sides:
+        room_mm = room_pt * 25.4 / 72
+        if room_mm < MIN_PANELS_MM:
+            raise DataError(Problem(
+                f"leaves {max(room_mm, 0):.1f} mm for the panels inside the page margin"
+                f"{' and under the title' if key == 'height_mm' else ''}; at least {MIN_PANELS_MM:g} mm is needed, "
+                f"so figure.{key} should be at least {math.ceil(size_mm - room_mm + MIN_PANELS_MM):d}",
+                ("figure", key), got=f"{size_mm:g}"))
 
 
 def _appearance(spec: FigureFile, plans: list[PanelPlan], ctx: DrawContext) -> dict:

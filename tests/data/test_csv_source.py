@@ -1,3 +1,4 @@
+import numpy as np
 import pytest
 
 from figspec.data.readers import load_source
@@ -59,3 +60,18 @@ def test_ragged_row_agrees_with_the_csv_module(tmp_path, text):
     rows = list(csv.reader(text.splitlines()))
     expected = next(((i, len(r)) for i, r in enumerate(rows, start=1) if r and len(r) != len(rows[0])), None)
     assert ragged_row(path, ",", 2) == expected
+
+
+@pytest.mark.parametrize("odd", ["\x1c3", "\u00b2", "3\u00a0", "\u0663"])
+def test_trial_ids_int_cannot_read_still_match(tmp_path, odd):
+    # str.strip() removes \x1c and str.isdigit() accepts a superscript two, yet int() reads neither
+    # (Python docs, int() and str.isdigit()); such an id must still match between the two tables,
+    # not crash the reader
+    (tmp_path / "s.csv").write_text(f"trial,t_ms\n1,12.5\n{odd},30\n", encoding="utf-8")
+    (tmp_path / "t.csv").write_text(f"trial,level\n1,10\n{odd},20\n", encoding="utf-8")
+    spec = SourceSpec.model_validate({"spikes": "s.csv", "trials": "t.csv", "time_unit": "ms", "unit_name": "c1",
+                                      "spike_columns": {"trial": "trial", "time": "t_ms"},
+                                      "trial_columns": {"trial": "trial", "level": "level"}})
+    rec = load_source(spec, tmp_path, ("sources", "odd"))
+    assert len(rec.trials) == 2 and rec.n_pairs == 2
+    assert np.diff(rec.offsets).tolist() == [1, 1]               # each trial keeps its one spike

@@ -8,7 +8,9 @@ import pandas as pd
 import pytest
 
 from figspec.data.csv_source import read_table
-from figspec.data.table import Table, count_missing, factorize, first_of_each, index_in, lookup, missing, numbers, row_codes
+from figspec.data.recording import natural_key
+from figspec.data.table import (Table, count_missing, factorize, first_of_each, index_in, lookup, missing, numbers, row_codes,
+                                whole_number)
 from figspec.errors import DataError
 
 
@@ -108,3 +110,15 @@ def test_csv_reader_header_only_is_an_error(tmp_path):
     path.write_text("unit,trial,time\n")
     with pytest.raises(DataError, match="has a header but no rows"):
         read_table(path, PLAN, ("spikes",))
+
+
+@pytest.mark.parametrize("text, expected", [("12", 12), (" -3\t", -3), ("\u00b2", None), ("\x1c3", None),
+                                            ("\u0663", None), ("1.0", None), ("", None), ("-", None)])
+def test_whole_number_reads_what_int_reads_in_ascii(text, expected):
+    # Python docs: str.isdigit() is true for superscripts, which int() refuses; figspec asks ASCII digits
+    assert whole_number(text) == expected
+
+
+def test_natural_key_orders_numbers_and_survives_other_digits():
+    names = ["u10", "u2", "u\u00b2", "u\u0663", "2"]
+    assert sorted(names, key=natural_key) == ["2", "u2", "u10", "u\u00b2", "u\u0663"]
