@@ -237,7 +237,9 @@ def pair_of_spikes(spikes: Table, spike_unit: np.ndarray, trials: Table, keys: l
         distinct = np.flatnonzero(first_of_each(lost_keys))
         first = ", ".join(shown([spikes[k][first_lost[i]] for k in keys]) if len(keys) > 1
                           else shown(spikes[keys[0]][first_lost[i]]) for i in distinct[:3])
-        raise DataError(Problem(f"{int(lost.sum())} spikes belong to {distinct.size} "
-                                f"trial keys that are not in the trial table of {layout.where}",
+        one = distinct.size == 1
+        raise DataError(Problem(f"{int(lost.sum())} spike{'' if lost.sum() == 1 else 's'} belong"
+                                f"{'s' if lost.sum() == 1 else ''} to {distinct.size} trial key"
+                                f"{' that is' if one else 's that are'} not in the trial table of {layout.where}",
                                 layout.locs.get("key0", ()), f"first: {first}"))
     return pair
