@@ -82,8 +82,9 @@ def journal_check(resolved: Resolved, profile: str | None = None) -> Rendered:
         raise DataError(resolved.spec.locate(Problem("no journal profile: name one after --journal or set "
                                                      "figure.journal", ("figure", "journal"))))
     fig = draw(resolved, compute(resolved))
-    files = figures(resolved, fig, dict.fromkeys([*resolved.spec.model.figure.formats, "pdf"]))
-    return Rendered([], target, tuple(journal.findings(resolved, fig, files, target)))
+    formats = resolved.spec.model.figure.formats
+    files = figures(resolved, fig, dict.fromkeys([*formats, "pdf"]))
+    return Rendered([], target, tuple(journal.findings(resolved, fig, files, target, formats)))
 
 
 def render_in_memory(resolved: Resolved, formats: Sequence[str] = ("png",)) -> tuple[dict[str, bytes], Tables]:

@@ -38,9 +38,11 @@ def layout_findings(resolved: Resolved, fig) -> list:
         return layout_check(fig)
 
 
-def findings(resolved: Resolved, fig, files: dict[str, bytes], target: Profile) -> list:
-    """Every finding of ``target`` on the drawn figure and its files."""
+def findings(resolved: Resolved, fig, files: dict[str, bytes], target: Profile, written=None) -> list:
+    """Every finding of ``target`` on the drawn figure and its files; ``written``: the formats a
+    render writes (by default those of ``files``; a check draws the PDF though no render writes it)."""
     readers = {p.name: kind_of(p).categories for p in resolved.panels}
     with styled(resolved.style):
         found = journal_check(fig, files, target, readers)
-    return found + format_findings(list(files), resolved.spec.model.figure.png_dpi, target)
+    return found + format_findings(list(files if written is None else written), resolved.spec.model.figure.png_dpi,
+                                   target)

@@ -80,3 +80,13 @@ def test_strict_journal_check_exits_2(tmp_path, cli):
     assert cli("check", path, "--profile", "nature").returncode == 0
     strict = cli("check", path, "--profile", "nature", "--strict")
     assert strict.returncode == 2 and "journal check Nature: width: figure, page:" in strict.stderr
+
+
+def test_check_flags_a_format_the_journal_wants_and_the_spec_does_not_write(tmp_path):
+    # the check draws a PDF to read it, but a render of this spec writes only a PNG: the journal's
+    # PDF is missing and the check must say so, as the render's own check does
+    nature = (BUILTIN_STYLES / "journals" / "nature.toml").read_text()
+    (tmp_path / "wants_pdf.toml").write_text(nature + '\nformats = ["pdf"]\n')
+    png_only = GOOD.replace('formats = ["pdf"]', 'formats = ["png"]')
+    assert "not written: pdf" in findings(tmp_path, png_only, "wants_pdf.toml")["formats"].message
+    assert "formats" not in findings(tmp_path, GOOD, "wants_pdf.toml")
