@@ -60,12 +60,17 @@ def _condition_blocks(ax, rows: pd.DataFrame, looks: dict, half: float, width: f
         spikes = ~np.isnan(times)
         ax.add_artist(tick_patch(tick_path(times[spikes], lines[spikes], half), fill=False, edgecolor=looks[name],
                                  linewidth=width, capstyle="butt", gid=f"raster:{name}"))
-        start = float(lines.min()) - 0.5
-        if start > 0:
-            ax.axhline(start, color="0.6", linewidth=style.axes.line_pt / 2, gid=f"condition_rule:{name}")
-        if first:
-            ax.text(1.01, (start + float(lines.max()) + 0.5) / 2, str(name), transform=edge, ha="left", va="center",
-                    color=looks[name], fontsize=style.font.tick_pt, gid=f"condition_name:{name}")
+        _block_marks(ax, edge, name, float(lines.min()) - 0.5, float(lines.max()) + 0.5, looks[name], first, style)
+
+
+def _block_marks(ax, edge, name, start: float, stop: float, colour, first: bool, style) -> None:
+    """A condition's block of lines: a thin rule above it (but the first) and, in the top axes,
+    its name at the right in the condition's colour."""
+    if start > 0:
+        ax.axhline(start, color="0.6", linewidth=style.axes.line_pt / 2, gid=f"condition_rule:{name}")
+    if first:
+        ax.text(1.01, (start + stop) / 2, str(name), transform=edge, ha="left", va="center",
+                color=colour, fontsize=style.font.tick_pt, gid=f"condition_name:{name}")
 
 
 TICK_ASPECT = 2.5      # a tick at least this many times as long as it is wide reads as a tick, not a dot
@@ -104,12 +109,22 @@ def draw_density(axes: dict, table: pd.DataFrame, panel: RasterPanel, ctx: DrawC
     norm = mpl.colors.Normalize(0.0, top)
     # white to the raster colour, linear in each channel: ink is proportional to the rate
     ink = mpl.colors.LinearSegmentedColormap.from_list("figspec_ink", ["#ffffff", ctx.style.raster.colour])
+    from matplotlib.transforms import blended_transform_factory
+
     groups = table[panel.repeat].to_numpy()
     bounds = np.flatnonzero(np.r_[True, groups[1:] != groups[:-1], True])
+    looks = {}
+    if "condition" in table.columns:                  # one grey scale for all; blocks ruled and named
+        names = list(dict.fromkeys(table["condition"]))
+        looks = {n: colour for n, (colour, _) in zip(names, panel.conditions.looks(len(names), ctx.style.palette))}
     image = None
     for lo, hi in zip(bounds[:-1], bounds[1:]):
         ax = axes[group_key(panel.repeat, groups[lo])]
         n = int(table["n_trials"].iloc[lo])
+        for name, block in table.iloc[lo:hi].groupby("condition", sort=False) if looks else ():
+            _block_marks(ax, blended_transform_factory(ax.transAxes, ax.transData), name,
+                         float(block["row_start"].min()) - 0.5, float(block["row_stop"].max()) - 0.5, looks[name],
+                         True, ctx.style)
         k = min(n_groups, n)
         grid = np.zeros((k, n_time))
         gi = table["row_start"].to_numpy()[lo:hi] * k // n

@@ -63,6 +63,10 @@ def _repeats(resolved: Resolved, panel, table, stim) -> tuple[list, list[str]]:
             n = stim.groupby("level")["n_trials"].first()
             shown = table.groupby("level")["n_shown"].first()
             text = {g: f"\nn = {int(shown[g])} of {int(n[g])}" for g in groups}
+        elif "condition" in table:           # trials split by condition: each block's count, in block order
+            each = "n_condition" if "n_condition" in table else "n_trials"
+            n = table.groupby(["level", "condition"], sort=False)[each].first()
+            text = {g: "\nn = " + " + ".join(str(int(v)) for v in n.loc[g]) for g in groups}
         else:
             n = stim.groupby("level")["n_trials"].first()
             text = {g: f"\nn = {int(n[g])}" for g in groups}
