@@ -64,7 +64,7 @@ def _condition_blocks(ax, rows: pd.DataFrame, looks: dict, half: float, width: f
 
 
 def _block_marks(ax, edge, name, start: float, stop: float, colour, first: bool, style) -> None:
-    """A condition's block of lines: a thin rule above it (but the first) and, in the top axes,
+    """A condition's block of lines: a thin rule above it (but the first) and, when ``first``,
     its name at the right in the condition's colour."""
     if start > 0:
         ax.axhline(start, color="0.6", linewidth=style.axes.line_pt / 2, gid=f"condition_rule:{name}")
@@ -101,6 +101,7 @@ def draw_density(axes: dict, table: pd.DataFrame, panel: RasterPanel, ctx: DrawC
     a key. The image is embedded as it is in PDF and SVG, so every format shows the same cells;
     its grey is linear in the rate, so mean ink over a window follows the mean rate."""
     import matplotlib as mpl
+    from matplotlib.transforms import blended_transform_factory
 
     n_time, n_groups = panel.density_bins
     w0, w1 = panel.window_ms
@@ -109,8 +110,6 @@ def draw_density(axes: dict, table: pd.DataFrame, panel: RasterPanel, ctx: DrawC
     norm = mpl.colors.Normalize(0.0, top)
     # white to the raster colour, linear in each channel: ink is proportional to the rate
     ink = mpl.colors.LinearSegmentedColormap.from_list("figspec_ink", ["#ffffff", ctx.style.raster.colour])
-    from matplotlib.transforms import blended_transform_factory
-
     groups = table[panel.repeat].to_numpy()
     bounds = np.flatnonzero(np.r_[True, groups[1:] != groups[:-1], True])
     looks = {}
@@ -121,10 +120,10 @@ def draw_density(axes: dict, table: pd.DataFrame, panel: RasterPanel, ctx: DrawC
     for lo, hi in zip(bounds[:-1], bounds[1:]):
         ax = axes[group_key(panel.repeat, groups[lo])]
         n = int(table["n_trials"].iloc[lo])
+        edge = blended_transform_factory(ax.transAxes, ax.transData)
         for name, block in table.iloc[lo:hi].groupby("condition", sort=False) if looks else ():
-            _block_marks(ax, blended_transform_factory(ax.transAxes, ax.transData), name,
-                         float(block["row_start"].min()) - 0.5, float(block["row_stop"].max()) - 0.5, looks[name],
-                         True, ctx.style)
+            _block_marks(ax, edge, name, float(block["row_start"].min()) - 0.5, float(block["row_stop"].max()) - 0.5,
+                         looks[name], True, ctx.style)
         k = min(n_groups, n)
         grid = np.zeros((k, n_time))
         gi = table["row_start"].to_numpy()[lo:hi] * k // n
