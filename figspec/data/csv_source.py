@@ -18,7 +18,7 @@ from pathlib import Path
 import numpy as np
 
 from figspec.data.columns import Plan, missing_columns
-from figspec.data.table import WHOLE, Coded, Table
+from figspec.data.table import Coded, Table, whole_number
 from figspec.errors import DataError, Loc, Problem
 from figspec.spec.sources import CsvSource
 
@@ -263,11 +263,9 @@ def _codes(array, seen: dict[str, int]) -> np.ndarray:
 def _whole_numbers(column: Coded):
     """A coded key or selection column as integers when every distinct value is a whole number
     that fits in 64 bits (trial numbers), else as text."""
-    texts = column.values
-    if texts.size and all(WHOLE.fullmatch(t) for t in texts.tolist()):
-        as_int = [int(t) for t in texts.tolist()]
-        if all(-2 ** 63 <= v < 2 ** 63 for v in as_int):
-            return np.array(as_int, dtype=np.int64)[column.codes]
+    as_int = [whole_number(t) for t in column.values.tolist()]
+    if as_int and all(v is not None and -2 ** 63 <= v < 2 ** 63 for v in as_int):
+        return np.array(as_int, dtype=np.int64)[column.codes]
     return column.decoded()
 
 
